@@ -1,0 +1,193 @@
+//! statebook: a notebook-style scripting language for engineers who work with linear
+//! state-space models. Plain-text analysis files run from the shell, a REPL explores, and
+//! a self-contained HTML report carries the analysis to a colleague.
+//!
+//! Layers (data flows one way): text → [`notebook`] → [`script`] (engine and bindings) →
+//! [`numeric`] (pure numerics) → values → [`display`] / [`report`] / [`plot`].
+#![deny(missing_docs)]
+
+pub mod display;
+pub mod notebook;
+pub mod numeric;
+pub mod plot;
+pub mod repl;
+pub mod report;
+pub mod sandbox;
+pub mod script;
+
+use notebook::diagnostic::ScriptError;
+use notebook::output::Output;
+use rhai::{Dynamic, Engine, Scope, AST};
+use sandbox::{Limits, Sandbox};
+use script::state::SessionState;
+use std::path::PathBuf;
+use std::sync::Arc;
+use std::time::{Duration, Instant};
+
+/// How a session is set up.
+#[derive(Debug, Clone)]
+pub struct SessionOptions {
+    /// The folder whose tree scripts may read and write (the analysis file's folder).
+    pub root: PathBuf,
+    /// Further folders scripts may read.
+    pub allow_read: Vec<PathBuf>,
+    /// Further folders scripts may read and write.
+    pub allow_write: Vec<PathBuf>,
+    /// Resource limits.
+    pub limits: Limits,
+}
+
+impl Default for SessionOptions {
+    fn default() -> Self {
+        SessionOptions {
+            root: PathBuf::from("."),
+            allow_read: Vec::new(),
+            allow_write: Vec::new(),
+            limits: Limits::default(),
+        }
+    }
+}
+
+/// One scripting session: an engine, its scope, the functions defined so far, and its
+/// state. Sessions share nothing, so several can run side by side.
+pub struct Session {
+    engine: Engine,
+    scope: Scope<'static>,
+    lib: AST,
+    state: Arc<SessionState>,
+}
+
+impl Session {
+    /// A new session.
+    pub fn new(options: &SessionOptions) -> Self {
+        let mut sb = Sandbox::new(&options.root);
+        for d in &options.allow_read {
+            sb.allow_read(d);
+        }
+        for d in &options.allow_write {
+            sb.allow_write(d);
+        }
+        let state = Arc::new(SessionState::new(sb, options.limits.clone()));
+        let deadline = (options.limits.timeout_seconds > 0.0)
+            .then(|| Instant::now() + Duration::from_secs_f64(options.limits.timeout_seconds));
+        let engine = script::engine::build(&state, deadline);
+        Session {
+            engine,
+            scope: Scope::new(),
+            lib: AST::empty(),
+            state,
+        }
+    }
+
+    /// Evaluates a piece of code in the session's scope and returns the value of its last
+    /// expression. Functions it defines stay callable by later pieces; modules it imports
+    /// stay available under their alias.
+    pub fn eval(&mut self, code: &str) -> Result<Dynamic, ScriptError> {
+        let ast = self
+            .engine
+            .compile_with_scope(&self.scope, code)
+            .map_err(|e| ScriptError::from_parse(&e))?;
+        self.keep_imports(code);
+        let merged = self.lib.merge(&ast);
+        let engine = &self.engine;
+        let scope = &mut self.scope;
+        let result = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+            engine.eval_ast_with_scope::<Dynamic>(scope, &merged)
+        }));
+        let mut lib = merged;
+        lib.clear_statements();
+        self.lib = lib;
+        match result {
+            Ok(Ok(v)) => Ok(v),
+            Ok(Err(e)) => Err(ScriptError::from_eval(&e)),
+            Err(panic) => {
+                let what = panic
+                    .downcast_ref::<String>()
+                    .cloned()
+                    .or_else(|| panic.downcast_ref::<&str>().map(|s| s.to_string()))
+                    .unwrap_or_else(|| "unknown".into());
+                Err(ScriptError {
+                    message: format!(
+                        "internal error: statebook failed on this input ({what})\nhint: please \
+                         report it with the analysis file"
+                    ),
+                    line: None,
+                    column: None,
+                    internal: true,
+                })
+            }
+        }
+    }
+
+    /// `import "name" as alias;` is scoped to one evaluation by the engine; registering
+    /// the module under its alias keeps it available to later cells and REPL lines.
+    fn keep_imports(&mut self, code: &str) {
+        for line in code.lines() {
+            let t = line.trim();
+            let Some(rest) = t.strip_prefix("import ") else {
+                continue;
+            };
+            let Some((path, alias)) = rest.split_once(" as ") else {
+                continue;
+            };
+            let path = path.trim().trim_matches('"');
+            let alias = alias.trim().trim_end_matches(';').trim();
+            if path.is_empty() || alias.is_empty() {
+                continue;
+            }
+            if let Ok(m) = self.engine.module_resolver().resolve(
+                &self.engine,
+                None,
+                path,
+                rhai::Position::NONE,
+            ) {
+                self.engine.register_static_module(alias, m);
+            }
+        }
+    }
+
+    /// Outputs captured since the last call (printed text, shown values, notes, figures,
+    /// warnings), in order.
+    pub fn take_outputs(&self) -> Vec<Output> {
+        self.state.take_outputs()
+    }
+
+    /// The display of a value in this session's style.
+    pub fn display(&self, v: &Dynamic) -> String {
+        script::show::format(v, self.state.style())
+    }
+
+    /// Shows a value as a cell output (figures as figures).
+    pub fn show_value(&self, v: Dynamic) -> Option<Output> {
+        if v.is_unit() {
+            return None;
+        }
+        if let Some(o) = script::builtins::figure_output(&v) {
+            return Some(o);
+        }
+        Some(Output::Value(self.display(&v)))
+    }
+
+    /// Named results recorded so far, in the order first recorded.
+    pub fn records(&self) -> Vec<(String, serde_json::Value)> {
+        self.state.records()
+    }
+
+    /// The folder scripts may read and write.
+    pub fn root(&self) -> &std::path::Path {
+        self.state.sandbox.root()
+    }
+
+    /// Names of the variables in scope (for completion).
+    pub fn variable_names(&self) -> Vec<String> {
+        self.scope.iter().map(|(n, _, _)| n.to_string()).collect()
+    }
+
+    /// Names of the script functions defined so far (for completion).
+    pub fn function_names(&self) -> Vec<String> {
+        self.lib
+            .iter_functions()
+            .map(|f| f.name.to_string())
+            .collect()
+    }
+}

@@ -1,0 +1,287 @@
+//! The `statebook` command line: parse, call the library, map errors to exit codes
+//! (0 success, 1 script error or drift, 2 bad command-line use).
+
+use clap::{Args, Parser, Subcommand};
+use statebook::notebook::{check, files, run};
+use statebook::sandbox::Limits;
+use statebook::{Session, SessionOptions};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+/// statebook — notebook-style analysis of linear state-space models.
+///
+/// Run without a command for the interactive prompt.
+#[derive(Parser)]
+#[command(name = "statebook", version, about, long_about = None, disable_help_subcommand = true)]
+struct Cli {
+    #[command(subcommand)]
+    command: Option<Command>,
+    #[command(flatten)]
+    common: Common,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Run an analysis file and print each cell's outputs.
+    Run {
+        /// The analysis file (.sbook).
+        file: PathBuf,
+    },
+    /// Render an analysis file to one self-contained report (and save its records).
+    Render {
+        /// The analysis file (.sbook).
+        file: PathBuf,
+        /// Where to write the report (default: beside the file, .html or .md).
+        #[arg(short, long)]
+        output: Option<PathBuf>,
+        /// Report format.
+        #[arg(long, value_enum, default_value = "html")]
+        format: Format,
+    },
+    /// Re-run an analysis file and compare every record with its saved results.
+    Check {
+        /// The analysis file (.sbook).
+        file: PathBuf,
+        /// Relative tolerance for numbers.
+        #[arg(long, default_value_t = 1e-9)]
+        tolerance: f64,
+    },
+    /// Show the built-ins by family, or the help page of one.
+    Help {
+        /// A built-in's name.
+        name: Option<String>,
+    },
+    /// Write a starter analysis file.
+    New {
+        /// The file to create (must not exist).
+        file: PathBuf,
+    },
+}
+
+#[derive(Clone, Copy, clap::ValueEnum)]
+enum Format {
+    Html,
+    Md,
+}
+
+#[derive(Args, Clone)]
+struct Common {
+    /// Also allow scripts to read below DIR.
+    #[arg(long, value_name = "DIR", global = true)]
+    allow_read: Vec<PathBuf>,
+    /// Also allow scripts to read and write below DIR.
+    #[arg(long, value_name = "DIR", global = true)]
+    allow_write: Vec<PathBuf>,
+    /// Most script operations per cell.
+    #[arg(long, value_name = "N", global = true)]
+    max_operations: Option<u64>,
+    /// Deepest nesting of function calls.
+    #[arg(long, value_name = "N", global = true)]
+    max_call_depth: Option<usize>,
+    /// Longest string in bytes.
+    #[arg(long, value_name = "N", global = true)]
+    max_string_size: Option<usize>,
+    /// Longest array.
+    #[arg(long, value_name = "N", global = true)]
+    max_array_size: Option<usize>,
+    /// Largest matrix in entries.
+    #[arg(long, value_name = "N", global = true)]
+    max_matrix_entries: Option<usize>,
+    /// Stop the run after this many seconds of wall-clock time.
+    #[arg(long, value_name = "SECONDS", global = true)]
+    timeout: Option<f64>,
+}
+
+impl Common {
+    fn options(&self, root: &Path) -> SessionOptions {
+        let mut limits = Limits::default();
+        if let Some(v) = self.max_operations {
+            limits.operations = v;
+        }
+        if let Some(v) = self.max_call_depth {
+            limits.call_depth = v;
+        }
+        if let Some(v) = self.max_string_size {
+            limits.string_size = v;
+        }
+        if let Some(v) = self.max_array_size {
+            limits.array_size = v;
+        }
+        if let Some(v) = self.max_matrix_entries {
+            limits.matrix_entries = v;
+        }
+        if let Some(v) = self.timeout {
+            limits.timeout_seconds = v.max(0.0);
+        }
+        SessionOptions {
+            root: root.to_path_buf(),
+            allow_read: self.allow_read.clone(),
+            allow_write: self.allow_write.clone(),
+            limits,
+        }
+    }
+}
+
+fn folder_of(file: &Path) -> PathBuf {
+    match file.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    }
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let code = match cli.command {
+        None => statebook::repl::start(cli.common_options()),
+        Some(Command::Run { file }) => cmd_run(&file, &cli.common),
+        Some(Command::Render {
+            file,
+            output,
+            format,
+        }) => cmd_render(
+            &file,
+            output.as_deref(),
+            matches!(format, Format::Md),
+            &cli.common,
+        ),
+        Some(Command::Check { file, tolerance }) => cmd_check(&file, tolerance, &cli.common),
+        Some(Command::Help { name }) => cmd_help(name.as_deref()),
+        Some(Command::New { file }) => cmd_new(&file),
+    };
+    ExitCode::from(code)
+}
+
+impl Cli {
+    fn common_options(&self) -> SessionOptions {
+        self.common.options(Path::new("."))
+    }
+}
+
+/// Reads and runs a file; prints errors; returns the run or an exit code.
+fn execute(
+    file: &Path,
+    common: &Common,
+) -> Result<(statebook::notebook::output::NotebookRun, Session), u8> {
+    let (text, sha) = files::read_analysis(file).map_err(|m| {
+        eprintln!("error: {m}");
+        1u8
+    })?;
+    let name = file.display().to_string();
+    let mut session = Session::new(&common.options(&folder_of(file)));
+    let r = run::run_text(&mut session, &text, &name, files::provenance(&name, &sha));
+    Ok((r, session))
+}
+
+fn cmd_run(file: &Path, common: &Common) -> u8 {
+    let (r, _) = match execute(file, common) {
+        Ok(v) => v,
+        Err(c) => return c,
+    };
+    print!("{}", run::transcript(&r));
+    if let Some(e) = run::first_error(&r) {
+        eprintln!("{e}");
+        return 1;
+    }
+    0
+}
+
+fn cmd_render(file: &Path, output: Option<&Path>, markdown: bool, common: &Common) -> u8 {
+    let (r, session) = match execute(file, common) {
+        Ok(v) => v,
+        Err(c) => return c,
+    };
+    if let Some(e) = run::first_error(&r) {
+        eprintln!("{e}");
+        eprintln!("note: no report written; an existing report was left as it was");
+        return 1;
+    }
+    match check::write_outputs(file, output, markdown, &r, &session.records()) {
+        Ok(written) => {
+            for w in written {
+                println!("wrote {}", w.display());
+            }
+            0
+        }
+        Err(m) => {
+            eprintln!("error: {m}");
+            1
+        }
+    }
+}
+
+fn cmd_check(file: &Path, tolerance: f64, common: &Common) -> u8 {
+    if !(tolerance.is_finite() && tolerance >= 0.0) {
+        eprintln!("error: --tolerance must be a finite number ≥ 0, found {tolerance}");
+        return 2;
+    }
+    let (r, session) = match execute(file, common) {
+        Ok(v) => v,
+        Err(c) => return c,
+    };
+    if let Some(e) = run::first_error(&r) {
+        eprintln!("{e}");
+        return 1;
+    }
+    match check::compare_with_saved(file, &session.records(), tolerance) {
+        Ok(report) => {
+            print!("{}", report.text);
+            if report.passed {
+                0
+            } else {
+                1
+            }
+        }
+        Err(m) => {
+            eprintln!("error: {m}");
+            1
+        }
+    }
+}
+
+fn cmd_help(name: Option<&str>) -> u8 {
+    use statebook::script::docs;
+    match name {
+        None => {
+            print!("{}", docs::overview());
+            0
+        }
+        Some(n) => match docs::find(n) {
+            Some(d) => {
+                println!("{}", docs::page(&d));
+                0
+            }
+            None => {
+                eprintln!("error: no built-in named '{n}'\nhint: `statebook help` lists them all");
+                1
+            }
+        },
+    }
+}
+
+fn cmd_new(file: &Path) -> u8 {
+    if file.exists() {
+        eprintln!(
+            "error: {} already exists; statebook new never overwrites a file",
+            file.display()
+        );
+        return 1;
+    }
+    let stem = file
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    match statebook::sandbox::write_atomic(file, check::starter(&stem).as_bytes()) {
+        Ok(()) => {
+            println!("wrote {}", file.display());
+            println!(
+                "next: statebook run {0}   or   statebook render {0}",
+                file.display()
+            );
+            0
+        }
+        Err(e) => {
+            eprintln!("error: cannot write {}: {e}", file.display());
+            1
+        }
+    }
+}

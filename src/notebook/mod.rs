@@ -1,0 +1,9 @@
+//! Analysis files: the cell parser, the runner that captures outputs per cell, the
+//! results file and the reproducibility check.
+
+pub mod check;
+pub mod diagnostic;
+pub mod files;
+pub mod output;
+pub mod parse;
+pub mod run;

@@ -1,0 +1,3 @@
+//! Frequency domain: responses, margins, norms.
+
+pub mod response;

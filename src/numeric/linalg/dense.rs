@@ -1,0 +1,1011 @@
+//! Safe dense building blocks: singular values and the SVD, rank, norm, condition,
+//! determinant, inverse, linear solves, Hessenberg reduction, block assembly, grids and
+//! approximate comparison.
+//!
+//! Every routine checks shapes and finiteness before it reaches nalgebra, whose operators
+//! panic on shape mismatch and whose SVD panics on empty matrices. Singularity is judged by
+//! the singular values (nalgebra's `try_inverse` accepts exactly singular matrices).
+
+use crate::numeric::check;
+use crate::numeric::error::{NumError, NumResult};
+use nalgebra::{Complex, DMatrix, DVector};
+
+/// Largest number of points [`linear_grid`] and [`log_grid`] will allocate.
+pub const MAX_GRID_POINTS: usize = 10_000_000;
+
+/// Iteration cap handed to nalgebra's implicit-shift SVD (total sweeps over all values).
+fn svd_iteration_cap(rows: usize, cols: usize) -> usize {
+    200 * (rows + cols) + 1000
+}
+
+/// The exponent e with 2^e the power of two at or below the largest |entry| of `a` (0 for a
+/// zero matrix).
+///
+/// Scaling by 2^−e is exact (barring subnormal results) and keeps nalgebra's sums of
+/// squares from overflowing or underflowing; every routine here that scales multiplies the
+/// scale back exactly.
+pub(crate) fn scale_exponent(a: &DMatrix<f64>) -> i32 {
+    let amax = a.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    if amax == 0.0 || !amax.is_finite() {
+        return 0;
+    }
+    amax.log2().floor() as i32
+}
+
+/// x·2^e without intermediate overflow or underflow of the factor (two steps).
+pub(crate) fn times_pow2(x: f64, e: i32) -> f64 {
+    let half = e / 2;
+    x * 2f64.powi(half) * 2f64.powi(e - half)
+}
+
+/// A diagonal block of a quasi-triangular matrix: first index and size (1 or 2).
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Block {
+    /// First row/column of the block.
+    pub start: usize,
+    /// 1 or 2.
+    pub size: usize,
+}
+
+/// Real Schur form A = Q T Qᵀ with every 2×2 diagonal block of T holding a complex pair
+/// (blocks with real eigenvalues are split by a rotation) and T zero below its blocks.
+pub(crate) fn real_schur(a: &DMatrix<f64>) -> NumResult<(DMatrix<f64>, DMatrix<f64>, Vec<Block>)> {
+    let n = a.nrows();
+    let cap = 100 * n + 1000;
+    let schur = nalgebra::linalg::Schur::try_new(a.clone(), f64::EPSILON, cap).ok_or(
+        NumError::NoConvergence {
+            what: "real Schur decomposition".into(),
+            iterations: cap,
+        },
+    )?;
+    let (mut q, mut t) = schur.unpack();
+    for j in 0..n {
+        for i in (j + 2)..n {
+            t[(i, j)] = 0.0;
+        }
+    }
+    let mut blocks = Vec::with_capacity(n);
+    let mut i = 0;
+    while i < n {
+        if i + 1 < n && t[(i + 1, i)] != 0.0 {
+            let (_, [a11, a12, a21, a22]) = scaled_block(&t, i);
+            let p = 0.5 * a11 - 0.5 * a22;
+            let discr = p * p + a12 * a21;
+            if discr >= 0.0 {
+                // Real pair: rotate the eigenvector of λ onto e₁ (upper-triangularises).
+                let lambda = 0.5 * (a11 + a22) + p.signum() * discr.sqrt();
+                let (v1, v2) = if (lambda - a22).hypot(a21) >= a12.hypot(lambda - a11) {
+                    (lambda - a22, a21)
+                } else {
+                    (a12, lambda - a11)
+                };
+                let r = v1.hypot(v2);
+                let (c, s) = if r == 0.0 {
+                    (1.0, 0.0)
+                } else {
+                    (v1 / r, v2 / r)
+                };
+                for k in 0..n {
+                    let (x, y) = (t[(i, k)], t[(i + 1, k)]);
+                    t[(i, k)] = c * x + s * y;
+                    t[(i + 1, k)] = -s * x + c * y;
+                }
+                for k in 0..n {
+                    let (x, y) = (t[(k, i)], t[(k, i + 1)]);
+                    t[(k, i)] = c * x + s * y;
+                    t[(k, i + 1)] = -s * x + c * y;
+                    let (x, y) = (q[(k, i)], q[(k, i + 1)]);
+                    q[(k, i)] = c * x + s * y;
+                    q[(k, i + 1)] = -s * x + c * y;
+                }
+                t[(i + 1, i)] = 0.0;
+                blocks.push(Block { start: i, size: 1 });
+                i += 1;
+            } else {
+                if i + 2 < n {
+                    t[(i + 2, i + 1)] = 0.0;
+                }
+                blocks.push(Block { start: i, size: 2 });
+                i += 2;
+            }
+        } else {
+            blocks.push(Block { start: i, size: 1 });
+            i += 1;
+        }
+    }
+    Ok((q, t, blocks))
+}
+
+/// Eigenvalue(s) of a diagonal block: λ (1×1) or θ + iμ with μ > 0 (2×2).
+pub(crate) fn block_eigenvalue(t: &DMatrix<f64>, b: Block) -> Complex<f64> {
+    let i = b.start;
+    if b.size == 1 {
+        return Complex::new(t[(i, i)], 0.0);
+    }
+    let (e, [a11, a12, a21, a22]) = scaled_block(t, i);
+    let p = 0.5 * a11 - 0.5 * a22;
+    let mu = (-(p * p + a12 * a21)).max(0.0).sqrt();
+    Complex::new(times_pow2(0.5 * a11 + 0.5 * a22, e), times_pow2(mu, e))
+}
+
+/// The 2×2 block at (i, i) divided by 2^e, e the exponent of its largest entry, so that
+/// products of entries neither overflow nor underflow: (e, [t₁₁, t₁₂, t₂₁, t₂₂]/2^e).
+fn scaled_block(t: &DMatrix<f64>, i: usize) -> (i32, [f64; 4]) {
+    let v = [t[(i, i)], t[(i, i + 1)], t[(i + 1, i)], t[(i + 1, i + 1)]];
+    let amax = v.iter().fold(0.0f64, |m, x| m.max(x.abs()));
+    let e = if amax > 0.0 {
+        amax.log2().floor() as i32
+    } else {
+        0
+    };
+    (e, v.map(|x| times_pow2(x, -e)))
+}
+
+/// Eigenvalues of a finite square matrix from its real Schur form (after optional
+/// balancing), with complex ones in exact conjugate pairs θ ± iμ, in block order.
+pub(crate) fn schur_eigenvalues(a: &DMatrix<f64>, balance: bool) -> NumResult<Vec<Complex<f64>>> {
+    let work = if balance {
+        balance_reducing_norm(a).map(|(b, _)| b)
+    } else {
+        None
+    };
+    let (_, t, blocks) = real_schur(work.as_ref().unwrap_or(a))?;
+    let mut out = Vec::with_capacity(a.nrows());
+    for b in blocks {
+        let z = block_eigenvalue(&t, b);
+        out.push(z);
+        if b.size == 2 {
+            out.push(z.conj());
+        }
+    }
+    Ok(out)
+}
+
+/// Parlett–Reinsch balancing B = D⁻¹AD (D a power-of-two diagonal, so exact), returned
+/// only when it lowers ‖·‖₁; `None` otherwise or for n < 2. `a` must be finite and square.
+///
+/// Balancing runs on a power-of-two scaled copy so that its row and column norms cannot
+/// overflow (nalgebra's loop would not terminate on infinite norms). Parlett & Reinsch
+/// 1969, "Balancing a matrix for calculation of eigenvalues and eigenvectors".
+pub(crate) fn balance_reducing_norm(a: &DMatrix<f64>) -> Option<(DMatrix<f64>, DVector<f64>)> {
+    if a.nrows() < 2 || a.nrows() != a.ncols() {
+        return None;
+    }
+    let e = scale_exponent(a);
+    let mut b = a.map(|v| times_pow2(v, -e));
+    let d = nalgebra::linalg::balancing::balance_parlett_reinsch(&mut b);
+    b.apply(|v| *v = times_pow2(*v, e));
+    let one_norm = |m: &DMatrix<f64>| {
+        m.column_iter()
+            .map(|c| c.iter().map(|v| v.abs()).sum::<f64>())
+            .fold(0.0f64, f64::max)
+    };
+    if b.iter().all(|v| v.is_finite()) && one_norm(&b) < one_norm(a) {
+        Some((b, d))
+    } else {
+        None
+    }
+}
+
+/// Undoes [`balance_reducing_norm`] on a function value: returns D F D⁻¹.
+pub(crate) fn unbalance(f: &mut DMatrix<f64>, d: &DVector<f64>) {
+    let n = f.nrows();
+    for j in 0..n {
+        for i in 0..n {
+            f[(i, j)] = f[(i, j)] * d[i] / d[j];
+        }
+    }
+}
+
+/// Frobenius norm ‖A‖_F computed without overflow or underflow of the squares (may still be
+/// +∞ when the true norm exceeds the range).
+pub(crate) fn frobenius_norm(a: &DMatrix<f64>) -> f64 {
+    let e = scale_exponent(a);
+    let scaled: f64 = a.iter().map(|v| times_pow2(*v, -e).powi(2)).sum();
+    times_pow2(scaled.sqrt(), e)
+}
+
+/// Thin SVD of a finite, non-empty matrix after exact power-of-two scaling.
+fn thin_svd(
+    a: &DMatrix<f64>,
+    vectors: bool,
+) -> NumResult<nalgebra::SVD<f64, nalgebra::Dyn, nalgebra::Dyn>> {
+    let e = scale_exponent(a);
+    let scaled = a.map(|v| times_pow2(v, -e));
+    let cap = svd_iteration_cap(a.nrows(), a.ncols());
+    let mut svd =
+        nalgebra::SVD::try_new(scaled, vectors, vectors, f64::EPSILON, cap).ok_or_else(|| {
+            NumError::NoConvergence {
+                what: "singular value decomposition".into(),
+                iterations: cap,
+            }
+        })?;
+    svd.singular_values.apply(|v| *v = times_pow2(*v, e));
+    Ok(svd)
+}
+
+/// Singular values of `a` (any shape), in descending order.
+///
+/// Mathematics: the σᵢ ≥ 0 with A = U Σ Vᵀ, min(r, c) of them. Algorithm: Householder
+/// bidiagonalisation then implicit-shift QR on the bidiagonal (Golub & Kahan 1965,
+/// "Calculating the singular values and pseudo-inverse of a matrix"; Golub & Reinsch 1970,
+/// "Singular value decomposition and least squares solutions"), via nalgebra, after an
+/// exact power-of-two scaling so that no intermediate overflows. Cost O(r·c·min(r, c)).
+/// Each σᵢ has absolute error of order ε·σ₁ (backward stability). An empty matrix
+/// (0 rows or 0 columns) has no singular values and gives an empty vector.
+pub fn singular_values(a: &DMatrix<f64>) -> NumResult<Vec<f64>> {
+    check::finite("A", a)?;
+    if a.nrows() == 0 || a.ncols() == 0 {
+        return Ok(Vec::new());
+    }
+    let svd = thin_svd(a, false)?;
+    let mut s: Vec<f64> = svd.singular_values.iter().copied().collect();
+    s.sort_by(|x, y| y.total_cmp(x));
+    Ok(s)
+}
+
+/// A full singular value decomposition A = U Σ Vᵀ of an r×c matrix.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FullSvd {
+    /// Orthogonal r×r matrix of left singular vectors (columns).
+    pub u: DMatrix<f64>,
+    /// The min(r, c) singular values, descending.
+    pub sigma: Vec<f64>,
+    /// Orthogonal c×c matrix of right singular vectors (columns).
+    pub v: DMatrix<f64>,
+}
+
+impl FullSvd {
+    /// The r×c matrix Σ with the singular values on its diagonal.
+    pub fn sigma_matrix(&self) -> DMatrix<f64> {
+        let mut s = DMatrix::zeros(self.u.nrows(), self.v.nrows());
+        for (k, v) in self.sigma.iter().enumerate() {
+            s[(k, k)] = *v;
+        }
+        s
+    }
+}
+
+/// Extends the orthonormal columns of `q` (n×k, k ≤ n) to an orthogonal n×n matrix.
+///
+/// The extra columns are the trailing columns of the full Householder factor of the QR
+/// factorisation of `q`, which are orthogonal to range(q) by construction.
+fn complete_orthonormal(q: DMatrix<f64>) -> DMatrix<f64> {
+    let (n, k) = q.shape();
+    if k >= n {
+        return q;
+    }
+    if k == 0 {
+        return DMatrix::identity(n, n);
+    }
+    let qr = q.clone().qr();
+    let mut full_t = DMatrix::<f64>::identity(n, n);
+    qr.q_tr_mul(&mut full_t);
+    let full = full_t.transpose();
+    let mut out = DMatrix::zeros(n, n);
+    out.columns_mut(0, k).copy_from(&q);
+    out.columns_mut(k, n - k).copy_from(&full.columns(k, n - k));
+    out
+}
+
+/// Full SVD A = U Σ Vᵀ with square orthogonal U (r×r) and V (c×c).
+///
+/// nalgebra's SVD is thin (U is r×k, V is c×k with k = min(r, c)); the missing columns are
+/// completed to an orthonormal basis of the orthogonal complement by one Householder QR of
+/// the thin factor, so they are orthonormal but otherwise arbitrary (any basis of the null
+/// space is valid). Algorithm and reference as [`singular_values`]; cost O(r·c·k) plus
+/// O(r³ + c³) for the completion. Residual ‖A − U Σ Vᵀ‖ is of order ε·σ₁. Empty matrices
+/// give identity U and V and no singular values.
+pub fn svd(a: &DMatrix<f64>) -> NumResult<FullSvd> {
+    check::finite("A", a)?;
+    let (r, c) = a.shape();
+    if r == 0 || c == 0 {
+        return Ok(FullSvd {
+            u: DMatrix::identity(r, r),
+            sigma: Vec::new(),
+            v: DMatrix::identity(c, c),
+        });
+    }
+    let thin = thin_svd(a, true)?;
+    let (u, v_t) = match (thin.u, thin.v_t) {
+        (Some(u), Some(v_t)) => (u, v_t),
+        _ => {
+            return Err(NumError::NoConvergence {
+                what: "singular value decomposition".into(),
+                iterations: 0,
+            })
+        }
+    };
+    let sigma: Vec<f64> = thin.singular_values.iter().copied().collect();
+    Ok(FullSvd {
+        u: complete_orthonormal(u),
+        sigma,
+        v: complete_orthonormal(v_t.transpose()),
+    })
+}
+
+/// Numerical rank: the number of singular values above `tol`.
+///
+/// Default tolerance max(r, c)·ε·σ₁ (the usual choice: singular values below it are
+/// indistinguishable from rounding errors of a backward-stable SVD). An explicit `tol` is
+/// an absolute threshold on σᵢ and must be finite and ≥ 0. Cost of [`singular_values`].
+/// Empty matrices have rank 0.
+pub fn rank(a: &DMatrix<f64>, tol: Option<f64>) -> NumResult<usize> {
+    if let Some(t) = tol {
+        if !t.is_finite() || t < 0.0 {
+            return Err(NumError::invalid(
+                "tolerance",
+                format!("expected a finite number ≥ 0, found {t}"),
+            ));
+        }
+    }
+    let s = singular_values(a)?;
+    let sigma1 = s.first().copied().unwrap_or(0.0);
+    let tol = tol.unwrap_or(a.nrows().max(a.ncols()) as f64 * f64::EPSILON * sigma1);
+    Ok(s.iter().filter(|&&v| v > tol).count())
+}
+
+/// Spectral norm ‖A‖₂ = σ₁, the largest singular value (0 for an empty matrix).
+///
+/// Computed from [`singular_values`]; relative accuracy of order ε.
+pub fn norm2(a: &DMatrix<f64>) -> NumResult<f64> {
+    Ok(singular_values(a)?.first().copied().unwrap_or(0.0))
+}
+
+/// 2-norm condition number κ₂(A) = σ₁/σₖ, k = min(r, c).
+///
+/// Defined for any shape (for a non-square matrix it is the condition of the least-squares
+/// problem with that matrix, i.e. σ_max/σ_min over its min(r, c) singular values). Returns
+/// `f64::INFINITY` when σₖ = 0 (including the zero matrix) and 1 for an empty matrix, which
+/// has no singular values (by the convention that the empty map is perfectly conditioned).
+/// Computed from [`singular_values`]; a computed σₖ carries an absolute error of order
+/// ε·σ₁, so values of κ above about 1/ε only mean "numerically singular".
+pub fn condition(a: &DMatrix<f64>) -> NumResult<f64> {
+    let s = singular_values(a)?;
+    match (s.first(), s.last()) {
+        (Some(&first), Some(&last)) => Ok(if last == 0.0 {
+            f64::INFINITY
+        } else {
+            first / last
+        }),
+        _ => Ok(1.0),
+    }
+}
+
+/// Reciprocal 2-norm condition σₙ/σ₁ of a finite square matrix (1 for 0×0, 0 for the zero
+/// matrix).
+fn reciprocal_condition(a: &DMatrix<f64>) -> NumResult<f64> {
+    let s = singular_values(a)?;
+    match (s.first(), s.last()) {
+        (Some(&first), Some(&last)) => Ok(if first == 0.0 { 0.0 } else { last / first }),
+        _ => Ok(1.0),
+    }
+}
+
+/// Refuses square `a` (n×n) whose reciprocal condition is below n·ε.
+fn ensure_nonsingular(what: &str, a: &DMatrix<f64>) -> NumResult<()> {
+    let n = a.nrows();
+    let rcond = reciprocal_condition(a)?;
+    if rcond < n as f64 * f64::EPSILON {
+        return Err(NumError::Singular {
+            what: what.to_string(),
+            rcond,
+        });
+    }
+    Ok(())
+}
+
+/// Determinant det(A) of a square matrix.
+///
+/// Algorithm: LU factorisation with partial pivoting, det = ±∏ uᵢᵢ (Golub & Van Loan 2013,
+/// "Matrix Computations", 4th ed., ch. 3). Cost ⅔n³. The result is the determinant of a matrix
+/// within a small relative backward error of A; it can over- or underflow for large n
+/// even when A is well conditioned (the value is then ±∞ or 0, as floating point gives).
+/// det of the 0×0 matrix is 1.
+pub fn determinant(a: &DMatrix<f64>) -> NumResult<f64> {
+    let n = check::finite_square("A", a)?;
+    if n == 0 {
+        return Ok(1.0);
+    }
+    Ok(a.clone().lu().determinant())
+}
+
+/// Inverse A⁻¹ of a square, numerically non-singular matrix.
+///
+/// Singularity test: the reciprocal 2-norm condition σₙ/σ₁ (from the singular values) must
+/// be at least n·ε, otherwise [`NumError::Singular`] reports that figure (0 when A is
+/// exactly singular). Then the inverse by LU with partial pivoting (Golub & Van Loan 2013,
+/// "Matrix Computations", 4th ed., ch. 3). Cost about 2n³ for the inverse plus the singular values.
+/// The relative error of the computed inverse is of order κ₂(A)·ε. Fails with
+/// [`NumError::NoSolution`] if the inverse overflows.
+pub fn inverse(a: &DMatrix<f64>) -> NumResult<DMatrix<f64>> {
+    let n = check::finite_square("A", a)?;
+    if n == 0 {
+        return Ok(DMatrix::zeros(0, 0));
+    }
+    ensure_nonsingular("A", a)?;
+    let inv = a.clone().lu().try_inverse().ok_or(NumError::Singular {
+        what: "A".into(),
+        rcond: 0.0,
+    })?;
+    check::finite("inverse", &inv).map_err(|_| {
+        NumError::no_solution(
+            "inverse of A",
+            "the inverse overflows the floating-point range",
+        )
+    })?;
+    Ok(inv)
+}
+
+/// Solves A X = B for X, with A square (n×n) and B n×k.
+///
+/// Same singularity judgement as [`inverse`] (reciprocal condition σₙ/σ₁ ≥ n·ε, else
+/// [`NumError::Singular`]); then LU with partial pivoting and forward/back substitution.
+/// Cost ⅔n³ + 2n²k plus the singular values of A. The relative error of X is of order
+/// κ₂(A)·ε. Shape errors name both shapes.
+pub fn solve(a: &DMatrix<f64>, b: &DMatrix<f64>) -> NumResult<DMatrix<f64>> {
+    let n = check::square("A", a)?;
+    if b.nrows() != n {
+        return Err(NumError::shape(
+            "solve(A, B)",
+            format!("B with {n} rows to match A ({})", check::shape_of(a)),
+            format!("B {}", check::shape_of(b)),
+        ));
+    }
+    check::finite("A", a)?;
+    check::finite("B", b)?;
+    if n == 0 || b.ncols() == 0 {
+        return Ok(DMatrix::zeros(n, b.ncols()));
+    }
+    ensure_nonsingular("A", a)?;
+    let x = a.clone().lu().solve(b).ok_or(NumError::Singular {
+        what: "A".into(),
+        rcond: 0.0,
+    })?;
+    check::finite("solution", &x).map_err(|_| {
+        NumError::no_solution(
+            "solve(A, B)",
+            "the solution overflows the floating-point range",
+        )
+    })?;
+    Ok(x)
+}
+
+/// Orthogonal Hessenberg reduction A = Q H Qᵀ: returns (Q, H) with Q orthogonal and H upper
+/// Hessenberg (zero below the first subdiagonal).
+///
+/// Algorithm: n − 2 Householder reflections (Golub & Van Loan 2013, "Matrix
+/// Computations", 4th ed., § 7.4), via nalgebra, after an exact power-of-two scaling. Cost about (10/3)n³ with Q.
+/// Backward stable: Q H Qᵀ = A + E with ‖E‖ of order ε‖A‖. 0×0 gives two empty matrices.
+pub fn hessenberg(a: &DMatrix<f64>) -> NumResult<(DMatrix<f64>, DMatrix<f64>)> {
+    let n = check::finite_square("A", a)?;
+    if n <= 2 {
+        return Ok((DMatrix::identity(n, n), a.clone()));
+    }
+    let e = scale_exponent(a);
+    let (q, mut h) = nalgebra::linalg::Hessenberg::new(a.map(|v| times_pow2(v, -e))).unpack();
+    h.apply(|v| *v = times_pow2(*v, e));
+    for j in 0..n {
+        for i in (j + 2)..n {
+            h[(i, j)] = 0.0;
+        }
+    }
+    Ok((q, h))
+}
+
+/// Assembles a block matrix from rows of blocks: `rows[i][j]` is block (i, j).
+///
+/// Every row must hold the same number of blocks; all blocks of block row i must have the
+/// same height and all blocks of block column j the same width. Empty blocks (0 rows or 0
+/// columns) are allowed and take part in the checks like any other. A shape error names
+/// the offending block by (row, col), 0-based. Values are copied as they are (no
+/// finiteness check: assembly computes nothing). No rows gives the 0×0 matrix. Cost: one
+/// copy of every entry.
+pub fn block(rows: &[Vec<DMatrix<f64>>]) -> NumResult<DMatrix<f64>> {
+    let Some(first) = rows.first() else {
+        return Ok(DMatrix::zeros(0, 0));
+    };
+    let ncols = first.len();
+    if ncols == 0 {
+        return Err(NumError::invalid(
+            "block row 0",
+            "expected at least one block, found none",
+        ));
+    }
+    let widths: Vec<usize> = first.iter().map(|m| m.ncols()).collect();
+    let mut heights = Vec::with_capacity(rows.len());
+    for (i, row) in rows.iter().enumerate() {
+        if row.len() != ncols {
+            return Err(NumError::shape(
+                format!("block row {i}"),
+                format!("{ncols} blocks like block row 0"),
+                format!("{} blocks", row.len()),
+            ));
+        }
+        let h = row[0].nrows();
+        for (j, m) in row.iter().enumerate() {
+            if m.nrows() != h {
+                return Err(NumError::shape(
+                    format!("block ({i}, {j})"),
+                    format!("{h} rows like block ({i}, 0)"),
+                    check::shape_of(m),
+                ));
+            }
+            if m.ncols() != widths[j] {
+                return Err(NumError::shape(
+                    format!("block ({i}, {j})"),
+                    format!("{} columns like block (0, {j})", widths[j]),
+                    check::shape_of(m),
+                ));
+            }
+        }
+        heights.push(h);
+    }
+    let total_rows: usize = heights.iter().sum();
+    let total_cols: usize = widths.iter().sum();
+    let mut out = DMatrix::zeros(total_rows, total_cols);
+    let mut r0 = 0;
+    for (i, row) in rows.iter().enumerate() {
+        let mut c0 = 0;
+        for (j, m) in row.iter().enumerate() {
+            out.view_mut((r0, c0), (heights[i], widths[j])).copy_from(m);
+            c0 += widths[j];
+        }
+        r0 += heights[i];
+    }
+    Ok(out)
+}
+
+/// Checks the common arguments of the grids.
+fn grid_count(low: f64, high: f64, count: usize) -> NumResult<()> {
+    if !low.is_finite() {
+        return Err(NumError::invalid(
+            "low",
+            format!("expected a finite number, found {low}"),
+        ));
+    }
+    if !high.is_finite() {
+        return Err(NumError::invalid(
+            "high",
+            format!("expected a finite number, found {high}"),
+        ));
+    }
+    if count > MAX_GRID_POINTS {
+        return Err(NumError::TooLarge {
+            what: format!("a grid of {count} points"),
+            limit: MAX_GRID_POINTS,
+        });
+    }
+    if count == 0 || (count == 1 && low != high) {
+        let why = if low == high {
+            format!("expected at least 1 point, found {count}")
+        } else {
+            format!("expected at least 2 points (1 only when low equals high), found {count}")
+        };
+        return Err(NumError::invalid("count", why));
+    }
+    Ok(())
+}
+
+/// `count` equally spaced points from `low` to `high`, both ends included exactly.
+///
+/// xₖ = low + (k/(count−1))·(high − low) for 0 < k < count−1, with x₀ = low and the last
+/// point = high exactly (the difference is formed as (1−t)·low + t·high when high − low
+/// would overflow). `high < low` gives a descending grid. `count` must be ≥ 2, or 1 when
+/// low == high (the grid is then that one point); at most [`MAX_GRID_POINTS`]. Cost
+/// O(count); each interior point is within a few ulps of its exact value.
+pub fn linear_grid(low: f64, high: f64, count: usize) -> NumResult<Vec<f64>> {
+    grid_count(low, high, count)?;
+    if count == 1 {
+        return Ok(vec![low]);
+    }
+    let span = high - low;
+    let last = (count - 1) as f64;
+    let mut out: Vec<f64> = (0..count)
+        .map(|k| {
+            let t = k as f64 / last;
+            if span.is_finite() {
+                low + t * span
+            } else {
+                (1.0 - t) * low + t * high
+            }
+        })
+        .collect();
+    out[0] = low;
+    out[count - 1] = high;
+    Ok(out)
+}
+
+/// `count` logarithmically spaced points from `low` to `high` (the end values themselves,
+/// not their logarithms), both ends included exactly.
+///
+/// xₖ = 10^(log₁₀ low + (k/(count−1))·(log₁₀ high − log₁₀ low)), with the first and last
+/// point set to `low` and `high` exactly; decade ends give exact powers of ten in between
+/// whenever the exponents are exact (log_grid(1, 1000, 4) = [1, 10, 100, 1000]). Both ends
+/// must be finite and > 0; `high < low` gives a descending grid; `count` as for
+/// [`linear_grid`]. Cost O(count); interior points carry a relative error of a few ulps
+/// times |log₁₀ xₖ|.
+pub fn log_grid(low: f64, high: f64, count: usize) -> NumResult<Vec<f64>> {
+    grid_count(low, high, count)?;
+    if low <= 0.0 {
+        return Err(NumError::invalid(
+            "low",
+            format!("expected a number > 0, found {low}"),
+        ));
+    }
+    if high <= 0.0 {
+        return Err(NumError::invalid(
+            "high",
+            format!("expected a number > 0, found {high}"),
+        ));
+    }
+    let exponents = linear_grid(low.log10(), high.log10(), count)?;
+    let mut out: Vec<f64> = exponents.iter().map(|e| 10f64.powf(*e)).collect();
+    out[0] = low;
+    if let Some(last) = out.last_mut() {
+        *last = high;
+    }
+    Ok(out)
+}
+
+/// Whether A and B agree entrywise: |aᵢⱼ − bᵢⱼ| ≤ tol·max(1, |aᵢⱼ|, |bᵢⱼ|) for every entry.
+///
+/// The test is mixed: absolute for entries of magnitude below 1, relative above. Matrices
+/// of different shapes are not equal (`false`, no error). Entries equal as floating-point
+/// numbers (including equal infinities) agree; NaN agrees with nothing. `tol` must be
+/// finite and ≥ 0. Cost O(r·c).
+pub fn approx_eq(a: &DMatrix<f64>, b: &DMatrix<f64>, tol: f64) -> NumResult<bool> {
+    if !tol.is_finite() || tol < 0.0 {
+        return Err(NumError::invalid(
+            "tolerance",
+            format!("expected a finite number ≥ 0, found {tol}"),
+        ));
+    }
+    if a.shape() != b.shape() {
+        return Ok(false);
+    }
+    Ok(a.iter()
+        .zip(b.iter())
+        .all(|(&x, &y)| x == y || (x - y).abs() <= tol * 1.0f64.max(x.abs()).max(y.abs())))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::assert_close;
+    use crate::numeric::testing::Rng;
+
+    const SIZES: [usize; 7] = [0, 1, 2, 3, 10, 57, 100];
+    const EPS: f64 = f64::EPSILON;
+
+    fn fro(m: &DMatrix<f64>) -> f64 {
+        m.norm()
+    }
+
+    fn orthogonality_error(q: &DMatrix<f64>) -> f64 {
+        let n = q.ncols();
+        fro(&(q.transpose() * q - DMatrix::<f64>::identity(n, n)))
+    }
+
+    #[test]
+    fn singular_values_descending_and_match_gram_eigenvalues() {
+        // σᵢ² are the eigenvalues of AᵀA (definition of the SVD); ‖A‖_F² = Σσᵢ².
+        let mut rng = Rng::new(1);
+        for &n in &SIZES {
+            for &(r, c) in &[(n, n), (n, n / 2 + 1), (n / 3, n)] {
+                let a = rng.matrix(r, c);
+                let s = singular_values(&a).expect("finite input");
+                assert_eq!(s.len(), r.min(c));
+                assert!(s.windows(2).all(|w| w[0] >= w[1]));
+                let sum_sq: f64 = s.iter().map(|v| v * v).sum();
+                assert_close!(sum_sq, fro(&a).powi(2), 1e-12, 1e-12);
+            }
+        }
+    }
+
+    #[test]
+    fn full_svd_reconstructs_and_is_orthogonal() {
+        // Residual checks: ‖A − UΣVᵀ‖ / (max(r,c)·ε·‖A‖) and ‖UᵀU − I‖ / (n·ε) below 30
+        // (the scaled-residual test ratio of CHECKS.md § 2).
+        let mut rng = Rng::new(2);
+        for &n in &SIZES {
+            for &(r, c) in &[(n, n), (n, n / 2), (n / 2, n), (n, 0), (0, n)] {
+                let a = rng.matrix(r, c);
+                let f = svd(&a).expect("finite input");
+                assert_eq!(f.u.shape(), (r, r));
+                assert_eq!(f.v.shape(), (c, c));
+                let res = fro(&(&a - &f.u * f.sigma_matrix() * f.v.transpose()));
+                let m = r.max(c).max(1) as f64;
+                assert!(
+                    res <= 30.0 * m * EPS * fro(&a).max(1e-300),
+                    "residual {res} at {r}×{c}"
+                );
+                assert!(orthogonality_error(&f.u) <= 30.0 * m * EPS);
+                assert!(orthogonality_error(&f.v) <= 30.0 * m * EPS);
+            }
+        }
+    }
+
+    #[test]
+    fn svd_of_huge_and_tiny_entries_does_not_overflow() {
+        // diag(3e300, 4e300) has singular values 4e300 and 3e300 (definition).
+        let a = DMatrix::from_row_slice(2, 2, &[3e300, 0.0, 0.0, 4e300]);
+        assert_close!(singular_values(&a).expect("finite"), vec![4e300, 3e300]);
+        let b = DMatrix::from_row_slice(3, 1, &[3e-310, 4e-310, 0.0]);
+        // The 2-norm of (3, 4, 0)·1e-310 is 5e-310 (Pythagoras); subnormals lose digits.
+        assert_close!(norm2(&b).expect("finite"), 5e-310, 1e-320, 1e-6);
+    }
+
+    #[test]
+    fn rank_of_products_of_random_factors() {
+        // A = X Yᵀ with X n×k, Y m×k random has rank k with probability 1.
+        let mut rng = Rng::new(3);
+        for &n in &SIZES {
+            let k = n / 3;
+            let a = rng.matrix(n, k) * rng.matrix(n + 2, k).transpose();
+            assert_eq!(rank(&a, None).expect("finite"), k);
+        }
+        assert_eq!(rank(&DMatrix::zeros(4, 3), None).expect("finite"), 0);
+        // diag(1, 1e-3): an explicit tolerance 1e-2 drops the second value (definition).
+        let d = DMatrix::from_diagonal(&nalgebra::DVector::from_vec(vec![1.0, 1e-3]));
+        assert_eq!(rank(&d, Some(1e-2)).expect("finite"), 1);
+        assert!(rank(&d, Some(-1.0)).is_err());
+    }
+
+    #[test]
+    fn norm_and_condition_closed_forms() {
+        // [[3, 0], [4, 0]] has σ = (5, 0): ‖A‖₂ = 5, κ = ∞ (definition).
+        let a = DMatrix::from_row_slice(2, 2, &[3.0, 0.0, 4.0, 0.0]);
+        assert_close!(norm2(&a).expect("finite"), 5.0);
+        assert_eq!(condition(&a).expect("finite"), f64::INFINITY);
+        // diag(2, −8): κ = 4 (definition); 1×3 row has κ = 1 (one singular value).
+        let d = DMatrix::from_row_slice(2, 2, &[2.0, 0.0, 0.0, -8.0]);
+        assert_close!(condition(&d).expect("finite"), 4.0);
+        assert_close!(
+            condition(&DMatrix::from_row_slice(1, 3, &[1.0, 2.0, 2.0])).expect("f"),
+            1.0
+        );
+        assert_eq!(condition(&DMatrix::zeros(0, 0)).expect("empty"), 1.0);
+        assert_eq!(norm2(&DMatrix::zeros(0, 3)).expect("empty"), 0.0);
+        // Orthogonal matrices have κ = 1 (all σ = 1).
+        let q = svd(&Rng::new(4).matrix(10, 10)).expect("finite").u;
+        assert_close!(condition(&q).expect("finite"), 1.0, 1e-13, 0.0);
+    }
+
+    #[test]
+    fn determinant_closed_forms_and_products() {
+        // [[1, 2], [3, 4]]: 1·4 − 2·3 = −2 (2×2 formula); 0×0 → 1 (empty product).
+        let a = DMatrix::from_row_slice(2, 2, &[1.0, 2.0, 3.0, 4.0]);
+        assert_close!(determinant(&a).expect("finite"), -2.0);
+        assert_eq!(determinant(&DMatrix::zeros(0, 0)).expect("empty"), 1.0);
+        // det(AB) = det A · det B (multiplicativity).
+        let mut rng = Rng::new(5);
+        for &n in &SIZES {
+            let x = rng.matrix(n, n);
+            let y = rng.matrix(n, n);
+            let lhs = determinant(&(&x * &y)).expect("finite");
+            let rhs = determinant(&x).expect("finite") * determinant(&y).expect("finite");
+            assert_close!(lhs, rhs, 1e-300, 1e-9 * (n.max(1) as f64));
+        }
+        assert!(matches!(
+            determinant(&DMatrix::zeros(2, 3)),
+            Err(NumError::NotSquare { .. })
+        ));
+    }
+
+    #[test]
+    fn inverse_and_solve_residuals() {
+        // ‖A X − I‖ / (n·ε·κ) small for random A (backward stability of LU).
+        let mut rng = Rng::new(6);
+        for &n in &SIZES {
+            let a = rng.matrix(n, n) + DMatrix::<f64>::identity(n, n) * (n as f64).sqrt();
+            let kappa = condition(&a).expect("finite");
+            let inv = inverse(&a).expect("well conditioned");
+            let res = fro(&(&a * &inv - DMatrix::<f64>::identity(n, n)));
+            assert!(
+                res <= 30.0 * (n.max(1) as f64) * EPS * kappa,
+                "n={n}: {res}"
+            );
+            let b = rng.matrix(n, 3);
+            let x = solve(&a, &b).expect("well conditioned");
+            let res = fro(&(&a * &x - &b)) / (fro(&a) * fro(&x) + fro(&b)).max(1e-300);
+            assert!(res <= 30.0 * (n.max(1) as f64) * EPS, "n={n}: {res}");
+        }
+    }
+
+    #[test]
+    fn singular_matrices_are_refused_with_rcond() {
+        // [[1, 2], [2, 4]] is exactly singular (second row = 2 × first); try_inverse would
+        // accept it (CRATE-FACTS.md § nalgebra traps).
+        let a = DMatrix::from_row_slice(2, 2, &[1.0, 2.0, 2.0, 4.0]);
+        match inverse(&a) {
+            Err(NumError::Singular { rcond, .. }) => assert!(rcond < 2.0 * EPS),
+            other => panic!("expected Singular, got {other:?}"),
+        }
+        // diag(1, 1e-17): rcond 1e-17 < 2ε, refused with that figure.
+        let d = DMatrix::from_row_slice(2, 2, &[1.0, 0.0, 0.0, 1e-17]);
+        match solve(&d, &DMatrix::from_element(2, 1, 1.0)) {
+            Err(NumError::Singular { rcond, .. }) => assert_close!(rcond, 1e-17, 0.0, 1e-12),
+            other => panic!("expected Singular, got {other:?}"),
+        }
+        assert!(
+            matches!(inverse(&DMatrix::zeros(3, 3)), Err(NumError::Singular { rcond, .. }) if rcond == 0.0)
+        );
+        // Tiny but perfectly conditioned: 1e-300·I inverts to 1e300·I.
+        let t = DMatrix::<f64>::identity(2, 2) * 1e-300;
+        assert_close!(
+            inverse(&t).expect("well conditioned"),
+            DMatrix::<f64>::identity(2, 2) * 1e300
+        );
+    }
+
+    #[test]
+    fn solve_shape_errors_name_both_shapes() {
+        let e = solve(&DMatrix::identity(3, 3), &DMatrix::zeros(4, 2)).expect_err("shape");
+        let msg = e.to_string();
+        assert!(msg.contains("3×3") && msg.contains("4×2"), "{msg}");
+        assert!(matches!(
+            solve(&DMatrix::zeros(2, 3), &DMatrix::zeros(2, 1)),
+            Err(NumError::NotSquare { .. })
+        ));
+        let mut a = DMatrix::<f64>::identity(2, 2);
+        a[(1, 0)] = f64::NAN;
+        assert!(matches!(
+            inverse(&a),
+            Err(NumError::NotFinite { row: 1, col: 0, .. })
+        ));
+    }
+
+    #[test]
+    fn hessenberg_structure_and_reconstruction() {
+        // Q H Qᵀ = A, QᵀQ = I, H zero below the subdiagonal (definition).
+        let mut rng = Rng::new(7);
+        for &n in &SIZES {
+            let a = rng.matrix(n, n);
+            let (q, h) = hessenberg(&a).expect("finite");
+            for j in 0..n {
+                for i in (j + 2)..n {
+                    assert_eq!(h[(i, j)], 0.0);
+                }
+            }
+            let m = n.max(1) as f64;
+            assert!(fro(&(&q * &h * q.transpose() - &a)) <= 30.0 * m * EPS * fro(&a).max(1.0));
+            assert!(orthogonality_error(&q) <= 30.0 * m * EPS);
+        }
+    }
+
+    #[test]
+    fn block_assembly_and_errors() {
+        let a = DMatrix::from_row_slice(1, 2, &[1.0, 2.0]);
+        let b = DMatrix::from_row_slice(1, 1, &[3.0]);
+        let c = DMatrix::from_row_slice(2, 2, &[4.0, 5.0, 6.0, 7.0]);
+        let d = DMatrix::from_row_slice(2, 1, &[8.0, 9.0]);
+        let m =
+            block(&[vec![a.clone(), b.clone()], vec![c.clone(), d.clone()]]).expect("consistent");
+        // Expected by writing the blocks side by side.
+        let expected =
+            DMatrix::from_row_slice(3, 3, &[1.0, 2.0, 3.0, 4.0, 5.0, 8.0, 6.0, 7.0, 9.0]);
+        assert_eq!(m, expected);
+        let e = block(&[vec![a.clone(), d.clone()]]).expect_err("height");
+        assert!(e.to_string().contains("block (0, 1)"), "{e}");
+        let e =
+            block(&[vec![a.clone(), b.clone()], vec![d.clone(), d.clone()]]).expect_err("width");
+        assert!(e.to_string().contains("block (1, 0)"), "{e}");
+        assert!(block(&[vec![a.clone(), b.clone()], vec![c.clone()]]).is_err());
+        assert_eq!(block(&[]).expect("empty").shape(), (0, 0));
+        // Empty blocks: a 0×2 block above a 2×2 one.
+        let m = block(&[vec![DMatrix::zeros(0, 2)], vec![c.clone()]]).expect("consistent");
+        assert_eq!(m, c);
+    }
+
+    #[test]
+    fn real_schur_blocks_are_standard_complex_pairs() {
+        // Q T Qᵀ = A, QᵀQ = I, T zero below its diagonal blocks, every 2×2 block holds a
+        // complex pair (negative discriminant), eigenvalue pairs exactly conjugate.
+        let mut rng = Rng::new(8);
+        for &n in &SIZES {
+            let a = rng.matrix(n, n);
+            let (q, t, blocks) = real_schur(&a).expect("converges");
+            let m = n.max(1) as f64;
+            assert!(fro(&(&q * &t * q.transpose() - &a)) <= 100.0 * m * EPS * fro(&a).max(1.0));
+            assert!(orthogonality_error(&q) <= 100.0 * m * EPS);
+            assert_eq!(blocks.iter().map(|b| b.size).sum::<usize>(), n);
+            for b in &blocks {
+                let i = b.start;
+                if b.size == 2 {
+                    let p = 0.5 * (t[(i, i)] - t[(i + 1, i + 1)]);
+                    assert!(p * p + t[(i, i + 1)] * t[(i + 1, i)] < 0.0);
+                }
+                for r in (i + b.size)..n {
+                    for c in i..(i + b.size) {
+                        assert_eq!(t[(r, c)], 0.0);
+                    }
+                }
+            }
+            let eig = schur_eigenvalues(&a, true).expect("converges");
+            assert_eq!(eig.len(), n);
+            // Sum of eigenvalues = trace (Vieta).
+            let sum: Complex<f64> = eig.iter().sum();
+            assert!((sum.re - a.trace()).abs() <= 1e-12 * m * fro(&a).max(1.0));
+            assert_eq!(sum.im, 0.0);
+        }
+        // [[1, 2], [3, 4]] has real eigenvalues (5 ± √33)/2 (quadratic formula): 1×1 blocks.
+        let a = DMatrix::from_row_slice(2, 2, &[1.0, 2.0, 3.0, 4.0]);
+        let mut eig: Vec<f64> = schur_eigenvalues(&a, false)
+            .expect("converges")
+            .iter()
+            .map(|z| z.re)
+            .collect();
+        eig.sort_by(f64::total_cmp);
+        assert_close!(
+            eig,
+            vec![(5.0 - 33f64.sqrt()) / 2.0, (5.0 + 33f64.sqrt()) / 2.0]
+        );
+    }
+
+    #[test]
+    fn extreme_magnitudes_never_panic() {
+        // Entries near the overflow threshold and subnormal ones: every routine returns a
+        // value or an error, never a panic or a hang.
+        for &v in &[1e308, -1e308, 5e-324, 1e-310] {
+            let a = DMatrix::from_fn(3, 3, |i, j| if (i + j) % 2 == 0 { v } else { -v / 2.0 });
+            let _ = singular_values(&a);
+            let _ = svd(&a);
+            let _ = rank(&a, None);
+            let _ = condition(&a);
+            let _ = determinant(&a);
+            let _ = inverse(&a);
+            let _ = solve(&a, &DMatrix::from_element(3, 1, v));
+            let _ = hessenberg(&a);
+            let _ = real_schur(&a);
+            assert!(frobenius_norm(&a).is_finite() || v.abs() > 1e300);
+        }
+        // ‖(3e300, 4e300)‖_F = 5e300 (Pythagoras) without overflow.
+        let a = DMatrix::from_row_slice(1, 2, &[3e300, 4e300]);
+        assert_close!(frobenius_norm(&a), 5e300);
+    }
+
+    #[test]
+    fn grids_include_ends_exactly() {
+        let g = linear_grid(0.0, 1.0, 5).expect("valid");
+        assert_eq!(g, vec![0.0, 0.25, 0.5, 0.75, 1.0]); // k/4, all exact in binary
+        let g = linear_grid(0.1, 0.7, 7).expect("valid");
+        assert_eq!((g[0], g[6]), (0.1, 0.7));
+        assert_close!(g[3], 0.4, 0.0, 4.0 * EPS);
+        let g = log_grid(1.0, 1000.0, 4).expect("valid");
+        assert_eq!(g, vec![1.0, 10.0, 100.0, 1000.0]); // exact decades
+        let g = log_grid(0.3, 7.0, 101).expect("valid");
+        assert_eq!((g[0], g[100]), (0.3, 7.0));
+        assert!(g.windows(2).all(|w| w[0] < w[1]));
+        assert_eq!(linear_grid(2.0, 2.0, 1).expect("one point"), vec![2.0]);
+        assert_eq!(
+            linear_grid(-1e308, 1e308, 3).expect("valid"),
+            vec![-1e308, 0.0, 1e308]
+        );
+        assert!(linear_grid(0.0, 1.0, 1).is_err());
+        assert!(linear_grid(0.0, 1.0, 0).is_err());
+        assert!(log_grid(0.0, 1.0, 3).is_err());
+        assert!(log_grid(1.0, -1.0, 3).is_err());
+        assert!(linear_grid(f64::NAN, 1.0, 3).is_err());
+        assert!(matches!(
+            linear_grid(0.0, 1.0, MAX_GRID_POINTS + 1),
+            Err(NumError::TooLarge { .. })
+        ));
+        let d = linear_grid(1.0, 0.0, 3).expect("descending");
+        assert_eq!(d, vec![1.0, 0.5, 0.0]);
+    }
+
+    #[test]
+    fn approx_eq_is_mixed_and_shape_safe() {
+        let a = DMatrix::from_row_slice(1, 2, &[1e6, 1e-9]);
+        let b = DMatrix::from_row_slice(1, 2, &[1e6 + 0.5, 2e-9]);
+        assert!(approx_eq(&a, &b, 1e-6).expect("valid")); // 0.5 ≤ 1e-6·1e6; 1e-9 ≤ 1e-6·1
+        assert!(!approx_eq(&a, &b, 1e-7).expect("valid"));
+        assert!(!approx_eq(&a, &DMatrix::zeros(2, 1), 1.0).expect("valid"));
+        let inf = DMatrix::from_element(1, 1, f64::INFINITY);
+        assert!(approx_eq(&inf, &inf, 0.0).expect("valid"));
+        let nan = DMatrix::from_element(1, 1, f64::NAN);
+        assert!(!approx_eq(&nan, &nan, 1.0).expect("valid"));
+        assert!(approx_eq(&a, &b, f64::NAN).is_err());
+    }
+}

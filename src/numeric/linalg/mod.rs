@@ -1,0 +1,12 @@
+//! Dense linear algebra: decompositions and matrix functions.
+
+pub mod dense;
+pub mod eigen;
+pub mod expm;
+pub mod hammarling;
+pub mod logm;
+pub mod ops;
+pub mod poly;
+pub mod qz;
+pub mod schur;
+pub mod sylvester;

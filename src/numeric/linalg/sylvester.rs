@@ -1,0 +1,870 @@
+//! Sylvester and Lyapunov matrix equations by the Schur method of Bartels & Stewart.
+//!
+//! * [`solve_sylvester`]: `A X + X B = C`.
+//! * [`solve_lyapunov`]: `A X + X Aᵀ + Q = 0` (continuous time).
+//! * [`solve_lyapunov_discrete`]: `A X Aᵀ − X + Q = 0` (discrete time, also called the
+//!   Stein equation).
+//!
+//! All three reduce the coefficient matrices to real Schur form once, solve the
+//! quasi-triangular equation block by block (each 1×1 or 2×2 diagonal block pair is a
+//! dense Kronecker system of order at most 4, solved by Gaussian elimination with complete
+//! pivoting) and transform back. The smallest pivot met in those block solves, divided by
+//! the norm scale of the equation, is the *relative separation* of the problem: when it
+//! falls to the resonance tolerance the equation is singular to working precision
+//! (λᵢ + μⱼ ≈ 0, or λᵢλⱼ ≈ 1 for the discrete form) and the routines return
+//! [`NumError::NoSolution`] naming that figure instead of a huge, meaningless solution.
+
+use crate::numeric::check;
+use crate::numeric::error::{NumError, NumResult};
+use nalgebra::{Complex, DMatrix, Schur};
+
+/// Tolerances of the matrix-equation solvers (this file and
+/// [`crate::numeric::linalg::hammarling`]).
+#[derive(Debug, Clone, PartialEq)]
+pub struct MatrixEquationParams {
+    /// Relative separation below which the equation counts as singular. A block pivot `p`
+    /// is rejected when `|p| ≤ resonance_tol · scale`, where `scale` is `‖A‖_F + ‖B‖_F`
+    /// (Sylvester), `2‖A‖_F` (continuous Lyapunov) or `1 + ‖A‖_F²` (discrete Lyapunov).
+    /// The forward error of the solution grows like `ε / separation`, so the default
+    /// `1e-12` refuses problems whose answer could not carry about four correct digits.
+    pub resonance_tol: f64,
+    /// Largest accepted `‖Q − Qᵀ‖_F / ‖Q‖_F` for the symmetric right-hand side of a
+    /// Lyapunov equation (default `1e-10`); the symmetric part of `Q` is used.
+    pub symmetry_tol: f64,
+    /// Cap on the QR iterations of the Schur decomposition (and of the SVD in
+    /// [`crate::numeric::lti::balance`]), per row of the matrix (default 100; the total cap
+    /// is this times `n`, at least 10).
+    pub schur_iterations_per_row: usize,
+}
+
+impl Default for MatrixEquationParams {
+    fn default() -> Self {
+        MatrixEquationParams {
+            resonance_tol: 1e-12,
+            symmetry_tol: 1e-10,
+            schur_iterations_per_row: 100,
+        }
+    }
+}
+
+/// Solves the Sylvester equation `A X + X B = C` with the default
+/// [`MatrixEquationParams`]; see [`solve_sylvester_with`].
+pub fn solve_sylvester(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    c: &DMatrix<f64>,
+) -> NumResult<DMatrix<f64>> {
+    solve_sylvester_with(a, b, c, &MatrixEquationParams::default())
+}
+
+/// Solves the Sylvester equation `A X + X B = C` for `X` (m×n), with `A` m×m, `B` n×n and
+/// `C` m×n.
+///
+/// **Mathematics.** The equation has a unique solution iff `λᵢ(A) + μⱼ(B) ≠ 0` for all
+/// eigenvalue pairs. With real Schur forms `A = U S Uᵀ`, `B = V R Vᵀ` it becomes
+/// `S Y + Y R = Uᵀ C V`, `X = U Y Vᵀ`, which is solved block by block: row blocks of `S`
+/// from the bottom, column blocks of `R` from the left, each diagonal block pair being a
+/// Kronecker system `(I ⊗ Sₖₖ + Rₗₗᵀ ⊗ I) vec Yₖₗ = vec(rhs)` of order ≤ 4.
+///
+/// **Algorithm.** Bartels & Stewart (1972), "Solution of the matrix equation AX + XB = C",
+/// Comm. ACM 15(9). The 2×2 Schur blocks need not be in standard form: every block system
+/// is solved as a general dense system by Gaussian elimination with complete pivoting.
+///
+/// **Cost.** Two real Schur decompositions (about 25m³ + 25n³ flops) plus
+/// `O(m²n + mn²)` for the back substitution and the transformations.
+///
+/// **Tolerance.** `params.resonance_tol` bounds the relative separation as described in
+/// [`MatrixEquationParams`]; below it the result is [`NumError::NoSolution`] naming the
+/// separation and the offending eigenvalues.
+pub fn solve_sylvester_with(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    c: &DMatrix<f64>,
+    params: &MatrixEquationParams,
+) -> NumResult<DMatrix<f64>> {
+    let m = check::finite_square("A", a)?;
+    let n = check::finite_square("B", b)?;
+    check::dims("C", c, m, n)?;
+    check::finite("C", c)?;
+    if m == 0 || n == 0 {
+        return Ok(DMatrix::zeros(m, n));
+    }
+    let (u, s) = real_schur(a, "A", params)?;
+    let (v, r) = real_schur(b, "B", params)?;
+    let g = u.transpose() * c * &v;
+    let scale = a.norm() + b.norm();
+    let y = solve_quasi_triangular(&s, &r, g, Kind::Continuous, params.resonance_tol * scale)
+        .map_err(|res| {
+            resonance_error(
+                "Sylvester equation A X + X B = C",
+                "A and −B have (nearly) common eigenvalues, λᵢ + μⱼ ≈ 0",
+                &res,
+                scale,
+                params,
+            )
+        })?;
+    let x = &u * y * v.transpose();
+    finite_solution("Sylvester equation A X + X B = C", x)
+}
+
+/// Solves the continuous Lyapunov equation `A X + X Aᵀ + Q = 0` with the default
+/// [`MatrixEquationParams`]; see [`solve_lyapunov_with`].
+pub fn solve_lyapunov(a: &DMatrix<f64>, q: &DMatrix<f64>) -> NumResult<DMatrix<f64>> {
+    solve_lyapunov_with(a, q, &MatrixEquationParams::default())
+}
+
+/// Solves the continuous Lyapunov equation `A X + X Aᵀ + Q = 0` for symmetric `X`, with
+/// `A` n×n and `Q` n×n symmetric.
+///
+/// **Mathematics.** Unique solution iff `λᵢ + λⱼ ≠ 0` for all eigenvalue pairs of `A`
+/// (stability of `A` is not required; when `A` is stable and `Q ⪰ 0`, `X ⪰ 0` and
+/// `X = ∫₀^∞ e^{At} Q e^{Aᵀt} dt`). With `A = U S Uᵀ` (real Schur) it becomes
+/// `S Y + Y Sᵀ = −Uᵀ Q U`, solved as the Sylvester equation `S Z + Z R = −Uᵀ Q U J` in
+/// the reversed variables `Z = Y J`, `R = J Sᵀ J` (J the reversal permutation, so `R` is
+/// upper quasi-triangular); `X = U Y Uᵀ`, returned exactly symmetric as `(X + Xᵀ)/2`.
+///
+/// **Algorithm.** Bartels & Stewart (1972), "Solution of the matrix equation AX + XB = C",
+/// Comm. ACM 15(9), with one Schur decomposition shared by both sides.
+///
+/// **Cost.** One real Schur decomposition (about 25n³ flops) plus `O(n³)`.
+///
+/// **Tolerance.** `Q` must be symmetric to `params.symmetry_tol` (relative, Frobenius);
+/// pivots are judged against `params.resonance_tol · 2‖A‖_F` (see
+/// [`MatrixEquationParams`]).
+pub fn solve_lyapunov_with(
+    a: &DMatrix<f64>,
+    q: &DMatrix<f64>,
+    params: &MatrixEquationParams,
+) -> NumResult<DMatrix<f64>> {
+    lyapunov_impl(a, q, Kind::Continuous, params)
+}
+
+/// Solves the discrete Lyapunov equation `A X Aᵀ − X + Q = 0` with the default
+/// [`MatrixEquationParams`]; see [`solve_lyapunov_discrete_with`].
+pub fn solve_lyapunov_discrete(a: &DMatrix<f64>, q: &DMatrix<f64>) -> NumResult<DMatrix<f64>> {
+    solve_lyapunov_discrete_with(a, q, &MatrixEquationParams::default())
+}
+
+/// Solves the discrete Lyapunov (Stein) equation `A X Aᵀ − X + Q = 0` for symmetric `X`,
+/// with `A` n×n and `Q` n×n symmetric.
+///
+/// **Mathematics.** Unique solution iff `λᵢλⱼ ≠ 1` for all eigenvalue pairs of `A`; when
+/// `A` is Schur-stable (all |λ| < 1) and `Q ⪰ 0`, `X = Σₖ Aᵏ Q (Aᵀ)ᵏ ⪰ 0`. With
+/// `A = U S Uᵀ` it becomes `S Y Sᵀ − Y = −Uᵀ Q U`; in the reversed variables
+/// `Z = Y J`, `R = J Sᵀ J` this is `S Z R − Z = −Uᵀ Q U J`, solved block by block (row
+/// blocks from the bottom, column blocks from the left) with the partial products `Z R`
+/// kept so that the whole solve stays `O(n³)`. Each block pair is the Kronecker system
+/// `(Rₗₗᵀ ⊗ Sₖₖ − I) vec Zₖₗ = vec(rhs)`.
+///
+/// **Algorithm.** The Schur-form recursion of Kitagawa (1977), "An algorithm for solving
+/// the matrix equation X = FXF' + S", Int. J. Control, and Barraud (1977), "A numerical
+/// algorithm to solve AᵀXA − X = Q", IEEE Trans. Automatic Control — the discrete analogue
+/// of Bartels & Stewart (1972).
+///
+/// **Cost.** One real Schur decomposition (about 25n³ flops) plus `O(n³)`.
+///
+/// **Tolerance.** As [`solve_lyapunov_with`], with pivots judged against
+/// `params.resonance_tol · (1 + ‖A‖_F²)`.
+pub fn solve_lyapunov_discrete_with(
+    a: &DMatrix<f64>,
+    q: &DMatrix<f64>,
+    params: &MatrixEquationParams,
+) -> NumResult<DMatrix<f64>> {
+    lyapunov_impl(a, q, Kind::Discrete, params)
+}
+
+/// Which quasi-triangular equation a block solve belongs to.
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum Kind {
+    /// `S Z + Z R = G`.
+    Continuous,
+    /// `S Z R − Z = G`.
+    Discrete,
+}
+
+/// A block pivot that fell to the threshold: where, and how small.
+#[derive(Debug, Clone)]
+struct Resonance {
+    /// Absolute value of the rejected pivot.
+    pivot: f64,
+    /// An eigenvalue of the diagonal block of `S` involved.
+    lambda: Complex<f64>,
+    /// An eigenvalue of the diagonal block of `R` involved.
+    mu: Complex<f64>,
+}
+
+fn lyapunov_impl(
+    a: &DMatrix<f64>,
+    q: &DMatrix<f64>,
+    kind: Kind,
+    params: &MatrixEquationParams,
+) -> NumResult<DMatrix<f64>> {
+    let n = check::finite_square("A", a)?;
+    check::dims("Q", q, n, n)?;
+    check::finite("Q", q)?;
+    let q = symmetric_part("Q", q, params.symmetry_tol)?;
+    if n == 0 {
+        return Ok(DMatrix::zeros(0, 0));
+    }
+    let (u, s) = real_schur(a, "A", params)?;
+    let r = reverse_transpose(&s);
+    // F J with F = −Uᵀ Q U: reversing the columns of F.
+    let f = -(u.transpose() * &q * &u);
+    let fj = reverse_columns(&f);
+    let (scale, what, cause) = match kind {
+        Kind::Continuous => (
+            2.0 * a.norm(),
+            "Lyapunov equation A X + X Aᵀ + Q = 0",
+            "A has eigenvalues with λᵢ + λⱼ ≈ 0 (symmetric about the imaginary axis)",
+        ),
+        Kind::Discrete => (
+            1.0 + a.norm_squared(),
+            "discrete Lyapunov equation A X Aᵀ − X + Q = 0",
+            "A has eigenvalues with λᵢλⱼ ≈ 1 (reciprocal about the unit circle)",
+        ),
+    };
+    let z = solve_quasi_triangular(&s, &r, fj, kind, params.resonance_tol * scale)
+        .map_err(|res| resonance_error(what, cause, &res, scale, params))?;
+    let y = reverse_columns(&z);
+    let x = &u * y * u.transpose();
+    let x = (&x + x.transpose()) * 0.5;
+    finite_solution(what, x)
+}
+
+/// Real Schur decomposition `A = Q T Qᵀ` with an iteration cap, as `(Q, T)`.
+///
+/// `T` is upper quasi-triangular with exact zeros below the subdiagonal (nalgebra's
+/// Hessenberg and QR sweeps write them). Fails with [`NumError::NoConvergence`] at the cap.
+pub(crate) fn real_schur(
+    a: &DMatrix<f64>,
+    what: &str,
+    params: &MatrixEquationParams,
+) -> NumResult<(DMatrix<f64>, DMatrix<f64>)> {
+    let n = a.nrows();
+    if n == 0 {
+        return Ok((DMatrix::zeros(0, 0), DMatrix::zeros(0, 0)));
+    }
+    let cap = params
+        .schur_iterations_per_row
+        .max(1)
+        .saturating_mul(n)
+        .max(10);
+    let schur =
+        Schur::try_new(a.clone(), f64::EPSILON, cap).ok_or_else(|| NumError::NoConvergence {
+            what: format!("real Schur decomposition of {what}"),
+            iterations: cap,
+        })?;
+    let (q, t) = schur.unpack();
+    check::finite(what, &t)?;
+    check::finite(what, &q)?;
+    Ok((q, t))
+}
+
+/// The diagonal blocks of an upper quasi-triangular matrix as `(start, size)`, size 1 or 2.
+///
+/// Fails with [`NumError::NoConvergence`] when two consecutive subdiagonal entries are
+/// non-zero (the matrix is not in real Schur form).
+pub(crate) fn quasi_blocks(t: &DMatrix<f64>) -> NumResult<Vec<(usize, usize)>> {
+    let n = t.nrows();
+    let mut blocks = Vec::with_capacity(n);
+    let mut i = 0;
+    while i < n {
+        if i + 1 < n && t[(i + 1, i)] != 0.0 {
+            if i + 2 < n && t[(i + 2, i + 1)] != 0.0 {
+                return Err(NumError::NoConvergence {
+                    what: "real Schur decomposition (a diagonal block larger than 2×2 remained)"
+                        .to_string(),
+                    iterations: 0,
+                });
+            }
+            blocks.push((i, 2));
+            i += 2;
+        } else {
+            blocks.push((i, 1));
+            i += 1;
+        }
+    }
+    Ok(blocks)
+}
+
+/// One eigenvalue of the diagonal block of `t` at `(start, size)` (the one with
+/// non-negative imaginary part for a 2×2 block).
+pub(crate) fn block_eigenvalue(t: &DMatrix<f64>, start: usize, size: usize) -> Complex<f64> {
+    if size == 1 {
+        return Complex::new(t[(start, start)], 0.0);
+    }
+    let (a, b) = (t[(start, start)], t[(start, start + 1)]);
+    let (c, d) = (t[(start + 1, start)], t[(start + 1, start + 1)]);
+    let mean = 0.5 * (a + d);
+    let disc = 0.25 * (a - d) * (a - d) + b * c;
+    if disc >= 0.0 {
+        Complex::new(mean + disc.sqrt(), 0.0)
+    } else {
+        Complex::new(mean, (-disc).sqrt())
+    }
+}
+
+/// Solves `S Z + Z R = G` (continuous) or `S Z R − Z = G` (discrete) for upper
+/// quasi-triangular `S` (m×m) and `R` (n×n); `threshold` is the absolute pivot floor.
+fn solve_quasi_triangular(
+    s: &DMatrix<f64>,
+    r: &DMatrix<f64>,
+    g: DMatrix<f64>,
+    kind: Kind,
+    threshold: f64,
+) -> Result<DMatrix<f64>, Resonance> {
+    let (m, n) = (s.nrows(), r.nrows());
+    let sb = quasi_blocks(s).map_err(|_| no_schur())?;
+    let rb = quasi_blocks(r).map_err(|_| no_schur())?;
+    let mut z = g;
+    // Discrete only: V = Z R, filled block by block as Z becomes known.
+    let mut v = match kind {
+        Kind::Discrete => DMatrix::zeros(m, n),
+        Kind::Continuous => DMatrix::zeros(0, 0),
+    };
+    for &(k0, p) in sb.iter().rev() {
+        let k1 = k0 + p;
+        for &(l0, q) in rb.iter() {
+            let l1 = l0 + q;
+            let mut rhs = z.view((k0, l0), (p, q)).clone_owned();
+            match kind {
+                Kind::Continuous => {
+                    if k1 < m {
+                        rhs -= s.view((k0, k1), (p, m - k1)) * z.view((k1, l0), (m - k1, q));
+                    }
+                    if l0 > 0 {
+                        rhs -= z.view((k0, 0), (p, l0)) * r.view((0, l0), (l0, q));
+                    }
+                }
+                Kind::Discrete => {
+                    if l0 > 0 {
+                        let partial = z.view((k0, 0), (p, l0)) * r.view((0, l0), (l0, q));
+                        rhs -= s.view((k0, k0), (p, p)) * partial;
+                    }
+                    if k1 < m {
+                        rhs -= s.view((k0, k1), (p, m - k1)) * v.view((k1, l0), (m - k1, q));
+                    }
+                }
+            }
+            let skk = s.view((k0, k0), (p, p)).clone_owned();
+            let rll = r.view((l0, l0), (q, q)).clone_owned();
+            let block =
+                solve_block(&skk, &rll, &rhs, kind, threshold).map_err(|pivot| Resonance {
+                    pivot,
+                    lambda: block_eigenvalue(s, k0, p),
+                    mu: block_eigenvalue(r, l0, q),
+                })?;
+            z.view_mut((k0, l0), (p, q)).copy_from(&block);
+            if kind == Kind::Discrete {
+                let vkl = z.view((k0, 0), (p, l1)) * r.view((0, l0), (l1, q));
+                v.view_mut((k0, l0), (p, q)).copy_from(&vkl);
+            }
+        }
+    }
+    Ok(z)
+}
+
+fn no_schur() -> Resonance {
+    Resonance {
+        pivot: f64::NAN,
+        lambda: Complex::new(f64::NAN, 0.0),
+        mu: Complex::new(f64::NAN, 0.0),
+    }
+}
+
+/// Solves one block system `Sₖₖ Y + Y Rₗₗ = rhs` or `Sₖₖ Y Rₗₗ − Y = rhs` (p, q ≤ 2) by
+/// its Kronecker form; `Err(|pivot|)` when a pivot is at or below `threshold`.
+fn solve_block(
+    skk: &DMatrix<f64>,
+    rll: &DMatrix<f64>,
+    rhs: &DMatrix<f64>,
+    kind: Kind,
+    threshold: f64,
+) -> Result<DMatrix<f64>, f64> {
+    let (p, q) = (skk.nrows(), rll.nrows());
+    let dim = p * q;
+    let mut k = [[0.0f64; 4]; 4];
+    let mut b = [0.0f64; 4];
+    // vec is column-major: entry (i, j) of the p×q block sits at i + p·j.
+    for j in 0..q {
+        for i in 0..p {
+            let row = i + p * j;
+            b[row] = rhs[(i, j)];
+            for jj in 0..q {
+                for ii in 0..p {
+                    let col = ii + p * jj;
+                    k[row][col] = match kind {
+                        Kind::Continuous => {
+                            let from_s = if jj == j { skk[(i, ii)] } else { 0.0 };
+                            let from_r = if ii == i { rll[(jj, j)] } else { 0.0 };
+                            from_s + from_r
+                        }
+                        Kind::Discrete => {
+                            let identity = if row == col { 1.0 } else { 0.0 };
+                            skk[(i, ii)] * rll[(jj, j)] - identity
+                        }
+                    };
+                }
+            }
+        }
+    }
+    let x = solve_small(&mut k, &mut b, dim, threshold)?;
+    Ok(DMatrix::from_fn(p, q, |i, j| x[i + p * j]))
+}
+
+/// Gaussian elimination with complete pivoting on a dense system of order `dim ≤ 4`.
+/// Returns the solution, or `Err(|pivot|)` for the first pivot at or below `threshold`.
+fn solve_small(
+    k: &mut [[f64; 4]; 4],
+    b: &mut [f64; 4],
+    dim: usize,
+    threshold: f64,
+) -> Result<[f64; 4], f64> {
+    let mut col_perm = [0usize, 1, 2, 3];
+    for step in 0..dim {
+        let (mut pr, mut pc, mut best) = (step, step, -1.0f64);
+        for (i, row) in k.iter().enumerate().take(dim).skip(step) {
+            for (j, value) in row.iter().enumerate().take(dim).skip(step) {
+                if value.abs() > best {
+                    best = value.abs();
+                    pr = i;
+                    pc = j;
+                }
+            }
+        }
+        if best <= threshold || best.is_nan() {
+            return Err(best.max(0.0));
+        }
+        k.swap(step, pr);
+        b.swap(step, pr);
+        for row in k.iter_mut().take(dim) {
+            row.swap(step, pc);
+        }
+        col_perm.swap(step, pc);
+        let pivot = k[step][step];
+        let pivot_row = k[step];
+        let pivot_rhs = b[step];
+        for (row, rhs) in k.iter_mut().zip(b.iter_mut()).take(dim).skip(step + 1) {
+            let factor = row[step] / pivot;
+            if factor != 0.0 {
+                for (entry, &p) in row.iter_mut().zip(pivot_row.iter()).take(dim).skip(step) {
+                    *entry -= factor * p;
+                }
+                *rhs -= factor * pivot_rhs;
+            }
+        }
+    }
+    let mut y = [0.0f64; 4];
+    for i in (0..dim).rev() {
+        let mut acc = b[i];
+        for j in i + 1..dim {
+            acc -= k[i][j] * y[j];
+        }
+        y[i] = acc / k[i][i];
+    }
+    let mut x = [0.0f64; 4];
+    for i in 0..dim {
+        x[col_perm[i]] = y[i];
+    }
+    Ok(x)
+}
+
+fn resonance_error(
+    what: &str,
+    cause: &str,
+    res: &Resonance,
+    scale: f64,
+    params: &MatrixEquationParams,
+) -> NumError {
+    if res.pivot.is_nan() {
+        return NumError::NoConvergence {
+            what: "real Schur decomposition (a diagonal block larger than 2×2 remained)"
+                .to_string(),
+            iterations: 0,
+        };
+    }
+    let separation = if scale > 0.0 { res.pivot / scale } else { 0.0 };
+    NumError::no_solution(
+        what,
+        format!(
+            "{cause}: relative separation {separation:.3e} is at or below the tolerance \
+             {:.1e} (eigenvalues near {} and {}); the solution is not unique or is \
+             dominated by rounding",
+            params.resonance_tol,
+            fmt_complex(res.lambda),
+            fmt_complex(res.mu),
+        ),
+    )
+}
+
+/// Formats a complex number compactly for messages: `-1.5`, `-0.5+2i`.
+pub(crate) fn fmt_complex(z: Complex<f64>) -> String {
+    if z.im == 0.0 {
+        format!("{:.6}", z.re)
+    } else if z.im > 0.0 {
+        format!("{:.6}+{:.6}i", z.re, z.im)
+    } else {
+        format!("{:.6}-{:.6}i", z.re, -z.im)
+    }
+}
+
+/// `(Q + Qᵀ)/2` after checking `‖Q − Qᵀ‖_F ≤ tol·‖Q‖_F`.
+pub(crate) fn symmetric_part(what: &str, q: &DMatrix<f64>, tol: f64) -> NumResult<DMatrix<f64>> {
+    let qt = q.transpose();
+    let asym = (q - &qt).norm();
+    let size = q.norm();
+    if asym > tol * size {
+        let rel = asym / size;
+        return Err(NumError::invalid(
+            what,
+            format!(
+                "expected a symmetric matrix, found ‖{what} − {what}ᵀ‖/‖{what}‖ = {rel:.3e} \
+                 (tolerance {tol:.1e})"
+            ),
+        ));
+    }
+    Ok((q + qt) * 0.5)
+}
+
+fn finite_solution(what: &str, x: DMatrix<f64>) -> NumResult<DMatrix<f64>> {
+    if x.iter().all(|v| v.is_finite()) {
+        Ok(x)
+    } else {
+        Err(NumError::no_solution(
+            what,
+            "the solution overflows the floating-point range",
+        ))
+    }
+}
+
+/// `J Sᵀ J` (J the reversal permutation): element (i, j) is `S[n−1−j, n−1−i]`.
+fn reverse_transpose(s: &DMatrix<f64>) -> DMatrix<f64> {
+    let n = s.nrows();
+    DMatrix::from_fn(n, n, |i, j| s[(n - 1 - j, n - 1 - i)])
+}
+
+/// `M J`: the columns of `M` in reverse order.
+fn reverse_columns(m: &DMatrix<f64>) -> DMatrix<f64> {
+    let n = m.ncols();
+    DMatrix::from_fn(m.nrows(), n, |i, j| m[(i, n - 1 - j)])
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::assert_close;
+    use crate::numeric::testing::Rng;
+
+    const SIZES: [usize; 6] = [0, 1, 2, 3, 10, 40];
+
+    /// A random matrix shifted so that every eigenvalue has real part ≤ −0.5.
+    fn random_stable(rng: &mut Rng, n: usize) -> DMatrix<f64> {
+        let r = rng.matrix(n, n);
+        if n == 0 {
+            return r;
+        }
+        let abscissa = r
+            .complex_eigenvalues()
+            .iter()
+            .map(|z| z.re)
+            .fold(f64::MIN, f64::max);
+        r - DMatrix::identity(n, n) * (abscissa + 0.5)
+    }
+
+    /// A random matrix scaled so that its spectral radius is `radius`.
+    fn random_schur_stable(rng: &mut Rng, n: usize, radius: f64) -> DMatrix<f64> {
+        let r = rng.matrix(n, n);
+        if n == 0 {
+            return r;
+        }
+        let rho = r
+            .complex_eigenvalues()
+            .iter()
+            .map(|z| z.norm())
+            .fold(0.0, f64::max);
+        r * (radius / rho)
+    }
+
+    fn random_symmetric(rng: &mut Rng, n: usize) -> DMatrix<f64> {
+        let m = rng.matrix(n, n);
+        &m + m.transpose()
+    }
+
+    /// ‖residual‖_F / (‖A‖_F ‖X‖_F ε n): the usual scaled test ratio of dense linear-algebra
+    /// test suites, with acceptance threshold 30 (CHECKS.md §2, from memory).
+    fn ratio(residual: &DMatrix<f64>, a: &DMatrix<f64>, x: &DMatrix<f64>, n: usize) -> f64 {
+        let denom = a.norm() * x.norm() * f64::EPSILON * n.max(1) as f64;
+        if denom == 0.0 {
+            residual.norm()
+        } else {
+            residual.norm() / denom
+        }
+    }
+
+    #[test]
+    fn scalar_closed_forms() {
+        // −2a·x + q = 0 with A = [−a] gives x = q/(2a) (CHECKS.md §2 closed form).
+        let (a, q) = (1.5, 4.0);
+        let x = solve_lyapunov(
+            &DMatrix::from_element(1, 1, -a),
+            &DMatrix::from_element(1, 1, q),
+        )
+        .expect("scalar Lyapunov");
+        assert_close!(x[(0, 0)], q / (2.0 * a));
+        // a²x − x + q = 0 gives x = q/(1 − a²) (derived by hand).
+        let (a, q) = (0.6, 2.0);
+        let x = solve_lyapunov_discrete(
+            &DMatrix::from_element(1, 1, a),
+            &DMatrix::from_element(1, 1, q),
+        )
+        .expect("scalar Stein");
+        assert_close!(x[(0, 0)], q / (1.0 - a * a));
+        // a x + x b = c gives x = c/(a + b) (derived by hand).
+        let x = solve_sylvester(
+            &DMatrix::from_element(1, 1, 2.0),
+            &DMatrix::from_element(1, 1, 3.0),
+            &DMatrix::from_element(1, 1, 10.0),
+        )
+        .expect("scalar Sylvester");
+        assert_close!(x[(0, 0)], 2.0);
+    }
+
+    #[test]
+    fn rotation_block_closed_form() {
+        // A = [[σ, ω], [−ω, σ]] has A + Aᵀ = 2σI, so X = x·I solves A X + X Aᵀ + I = 0 with
+        // 2σx = −1, x = −1/(2σ) (derived by hand); eigenvalues σ ± jω are a complex pair.
+        let (sigma, omega) = (-0.25, 3.0);
+        let a = DMatrix::from_row_slice(2, 2, &[sigma, omega, -omega, sigma]);
+        let x = solve_lyapunov(&a, &DMatrix::identity(2, 2)).expect("rotation block");
+        assert_close!(x, DMatrix::identity(2, 2) * (-1.0 / (2.0 * sigma)));
+        // Discrete: A = ρ·rotation has A Aᵀ = ρ²I, so x = 1/(1 − ρ²) (derived by hand).
+        let (rho, th) = (0.8f64, 0.7f64);
+        let a = DMatrix::from_row_slice(
+            2,
+            2,
+            &[
+                rho * th.cos(),
+                -rho * th.sin(),
+                rho * th.sin(),
+                rho * th.cos(),
+            ],
+        );
+        let x = solve_lyapunov_discrete(&a, &DMatrix::identity(2, 2)).expect("discrete rotation");
+        assert_close!(x, DMatrix::identity(2, 2) * (1.0 / (1.0 - rho * rho)));
+    }
+
+    #[test]
+    fn lyapunov_residuals_on_random_stable_matrices() {
+        let mut rng = Rng::new(7);
+        for &n in &SIZES {
+            let a = random_stable(&mut rng, n);
+            let q = random_symmetric(&mut rng, n);
+            let x = solve_lyapunov(&a, &q).expect("stable Lyapunov");
+            let res = &a * &x + &x * a.transpose() + &q;
+            let r = ratio(&res, &a, &x, n);
+            assert!(r < 30.0, "n = {n}: scaled residual {r}");
+            assert_eq!(x, x.transpose(), "n = {n}: symmetric result");
+        }
+    }
+
+    #[test]
+    fn lyapunov_residuals_on_random_unstable_matrices() {
+        // Stability is not needed, only λᵢ + λⱼ ≠ 0; Gaussian matrices have it almost surely.
+        let mut rng = Rng::new(8);
+        for &n in &SIZES {
+            let a = rng.matrix(n, n);
+            let q = random_symmetric(&mut rng, n);
+            let x = solve_lyapunov(&a, &q).expect("general Lyapunov");
+            let res = &a * &x + &x * a.transpose() + &q;
+            let r = ratio(&res, &a, &x, n);
+            assert!(r < 30.0, "n = {n}: scaled residual {r}");
+        }
+    }
+
+    #[test]
+    fn discrete_residuals_on_random_matrices() {
+        let mut rng = Rng::new(9);
+        for &n in &SIZES {
+            let a = random_schur_stable(&mut rng, n, 0.9);
+            let q = random_symmetric(&mut rng, n);
+            let x = solve_lyapunov_discrete(&a, &q).expect("discrete Lyapunov");
+            let res = &a * &x * a.transpose() - &x + &q;
+            // Scale: ‖A‖² ‖X‖ + ‖X‖, the size of the two terms that cancel.
+            let denom = (a.norm_squared() + 1.0) * x.norm() * f64::EPSILON * n.max(1) as f64;
+            let r = if denom == 0.0 {
+                res.norm()
+            } else {
+                res.norm() / denom
+            };
+            assert!(r < 30.0, "n = {n}: scaled residual {r}");
+        }
+    }
+
+    #[test]
+    fn sylvester_residuals_rectangular() {
+        let mut rng = Rng::new(10);
+        for &(m, n) in &[(0, 3), (3, 0), (1, 2), (2, 3), (3, 10), (10, 40), (40, 1)] {
+            let a = rng.matrix(m, m);
+            let b = rng.matrix(n, n) + DMatrix::identity(n, n) * 3.0;
+            let c = rng.matrix(m, n);
+            let x = solve_sylvester(&a, &b, &c).expect("Sylvester");
+            let res = &a * &x + &x * &b - &c;
+            let denom = (a.norm() + b.norm()) * x.norm() * f64::EPSILON * (m + n).max(1) as f64;
+            let r = if denom == 0.0 {
+                res.norm()
+            } else {
+                res.norm() / denom
+            };
+            assert!(r < 30.0, "{m}×{n}: scaled residual {r}");
+        }
+    }
+
+    #[test]
+    fn complex_pairs_in_a_dense_similarity() {
+        // Spectrum {−1 ± 4j, −0.2 ± 1j, −3}, hidden by a random similarity; the Schur form
+        // then has 2×2 blocks in nalgebra's non-standard form.
+        let mut rng = Rng::new(11);
+        let mut d = DMatrix::zeros(5, 5);
+        d[(0, 0)] = -1.0;
+        d[(0, 1)] = 4.0;
+        d[(1, 0)] = -4.0;
+        d[(1, 1)] = -1.0;
+        d[(2, 2)] = -0.2;
+        d[(2, 3)] = 1.0;
+        d[(3, 2)] = -1.0;
+        d[(3, 3)] = -0.2;
+        d[(4, 4)] = -3.0;
+        let v = rng.matrix(5, 5) + DMatrix::identity(5, 5) * 3.0;
+        let vinv = v
+            .clone()
+            .try_inverse()
+            .expect("well-conditioned test similarity");
+        let a = &v * d * vinv;
+        let q = random_symmetric(&mut rng, 5);
+        let x = solve_lyapunov(&a, &q).expect("complex pairs");
+        let res = &a * &x + &x * a.transpose() + &q;
+        assert!(ratio(&res, &a, &x, 5) < 30.0);
+        let x = solve_lyapunov_discrete(&(&a * 0.2), &q).expect("complex pairs, discrete");
+        let a2 = &a * 0.2;
+        let res = &a2 * &x * a2.transpose() - &x + &q;
+        assert!(res.norm() < 1e3 * f64::EPSILON * (1.0 + a2.norm_squared()) * x.norm());
+    }
+
+    #[test]
+    fn singular_equation_is_reported() {
+        // Eigenvalues 1 and −1: λ₁ + λ₂ = 0, the continuous equation is singular.
+        let mut rng = Rng::new(12);
+        let v = rng.matrix(3, 3) + DMatrix::identity(3, 3) * 3.0;
+        let vinv = v
+            .clone()
+            .try_inverse()
+            .expect("well-conditioned test similarity");
+        let a = &v
+            * DMatrix::from_diagonal(&nalgebra::DVector::from_vec(vec![1.0, -1.0, -2.0]))
+            * &vinv;
+        let q = DMatrix::identity(3, 3);
+        match solve_lyapunov(&a, &q) {
+            Err(NumError::NoSolution { why, .. }) => {
+                assert!(why.contains("λᵢ + λⱼ ≈ 0"), "{why}");
+                assert!(why.contains("relative separation"), "{why}");
+            }
+            other => panic!("expected a resonance error, found {other:?}"),
+        }
+        // Eigenvalues 2 and 0.5: λ₁λ₂ = 1, the discrete equation is singular.
+        let a =
+            &v * DMatrix::from_diagonal(&nalgebra::DVector::from_vec(vec![2.0, 0.5, 0.1])) * &vinv;
+        match solve_lyapunov_discrete(&a, &q) {
+            Err(NumError::NoSolution { why, .. }) => assert!(why.contains("λᵢλⱼ ≈ 1"), "{why}"),
+            other => panic!("expected a resonance error, found {other:?}"),
+        }
+        // Sylvester with λ(A) = 2 and μ(B) = −2.
+        let a = DMatrix::from_row_slice(2, 2, &[2.0, 1.0, 0.0, 5.0]);
+        let b = DMatrix::from_row_slice(2, 2, &[-2.0, 0.0, 3.0, 1.0]);
+        let c = DMatrix::from_element(2, 2, 1.0);
+        assert!(matches!(
+            solve_sylvester(&a, &b, &c),
+            Err(NumError::NoSolution { .. })
+        ));
+        // A = 0 makes every pivot zero.
+        let z = DMatrix::zeros(2, 2);
+        assert!(matches!(
+            solve_lyapunov(&z, &q.view((0, 0), (2, 2)).clone_owned()),
+            Err(NumError::NoSolution { .. })
+        ));
+    }
+
+    #[test]
+    fn near_resonance_is_reported_with_its_figure() {
+        // Eigenvalues ±1 ± 1e-15 relative: far below the 1e-12 tolerance.
+        let a = DMatrix::from_row_slice(2, 2, &[1.0, 1.0, 0.0, -1.0 + 1e-15]);
+        let q = DMatrix::identity(2, 2);
+        let err = solve_lyapunov(&a, &q).expect_err("near-resonant");
+        let text = err.to_string();
+        assert!(text.contains("relative separation"), "{text}");
+        assert!(text.contains("e-1"), "{text}");
+        // Just above the tolerance it solves: separation 1e-6 (λ = 1, −1 + 1e-6).
+        let a = DMatrix::from_row_slice(2, 2, &[1.0, 1.0, 0.0, -1.0 + 1e-6]);
+        let x = solve_lyapunov(&a, &q).expect("separated enough");
+        let res = &a * &x + &x * a.transpose() + &q;
+        assert!(ratio(&res, &a, &x, 2) < 30.0);
+    }
+
+    #[test]
+    fn argument_checks() {
+        let a = DMatrix::identity(2, 2) * -1.0;
+        let q = DMatrix::from_row_slice(2, 2, &[1.0, 2.0, 0.0, 1.0]);
+        match solve_lyapunov(&a, &q) {
+            Err(NumError::InvalidArgument { what, why }) => {
+                assert_eq!(what, "Q");
+                assert!(why.contains("symmetric"), "{why}");
+            }
+            other => panic!("expected a symmetry error, found {other:?}"),
+        }
+        // Rounding-level asymmetry is accepted and symmetrised.
+        let q = DMatrix::from_row_slice(2, 2, &[1.0, 0.5, 0.5 + 1e-15, 1.0]);
+        assert!(solve_lyapunov(&a, &q).is_ok());
+        assert!(matches!(
+            solve_lyapunov(&DMatrix::zeros(2, 3), &q),
+            Err(NumError::NotSquare { .. })
+        ));
+        assert!(matches!(
+            solve_lyapunov(&a, &DMatrix::identity(3, 3)),
+            Err(NumError::ShapeMismatch { .. })
+        ));
+        let mut bad = a.clone();
+        bad[(1, 0)] = f64::NAN;
+        assert!(matches!(
+            solve_lyapunov(&bad, &q),
+            Err(NumError::NotFinite { .. })
+        ));
+        assert!(matches!(
+            solve_sylvester(&a, &a, &DMatrix::zeros(2, 1)),
+            Err(NumError::ShapeMismatch { .. })
+        ));
+        let mut qi = DMatrix::identity(2, 2);
+        qi[(0, 0)] = f64::INFINITY;
+        assert!(matches!(
+            solve_lyapunov_discrete(&a, &qi),
+            Err(NumError::NotFinite { .. })
+        ));
+    }
+
+    #[test]
+    fn solve_small_matches_direct_inverse() {
+        // A 4×4 dense system with known solution x = (1, −2, 3, −4) (constructed).
+        let m = [
+            [4.0, 1.0, 0.5, 0.0],
+            [1.0, -3.0, 0.0, 2.0],
+            [0.0, 2.0, 5.0, 1.0],
+            [1.0, 0.0, 1.0, 2.0],
+        ];
+        let x_true = [1.0, -2.0, 3.0, -4.0];
+        let mut b = [0.0; 4];
+        for i in 0..4 {
+            b[i] = (0..4).map(|j| m[i][j] * x_true[j]).sum();
+        }
+        let mut k = m;
+        let x = solve_small(&mut k, &mut b, 4, 0.0).expect("regular system");
+        assert_close!(x.to_vec(), x_true.to_vec(), 1e-14, 1e-14);
+    }
+}

@@ -1,0 +1,701 @@
+//! Transmission (invariant) zeros of a state-space model x' = Ax + Bu, y = Cx + Du.
+//!
+//! The zeros are the finite λ at which the system matrix
+//!
+//! ```text
+//! S(λ) = [A − λI  B]
+//!        [  C     D]      ((n+p)×(n+m))
+//! ```
+//!
+//! loses rank below its normal rank (its rank for almost every λ). For a non-square or
+//! degenerate model S(λ) is a singular pencil, and its "generalized eigenvalues" computed
+//! directly are meaningless; the reduction of Emami-Naeini, A. & Van Dooren, P. (1982),
+//! "Computation of zeros of linear multivariable systems", Automatica 18(4), 415–430,
+//! first extracts a regular square pencil with exactly the same finite zeros, whose
+//! generalized eigenvalues are then computed by QZ ([`crate::numeric::linalg::qz`]).
+
+use crate::numeric::check;
+use crate::numeric::error::{NumError, NumResult};
+use crate::numeric::linalg::qz;
+use nalgebra::linalg::SVD;
+use nalgebra::{Complex, DMatrix};
+
+/// Tolerances of the zero computation.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ZerosParams {
+    /// Relative rank tolerance: a singular value counts as zero when it is at most
+    /// `rank_tolerance · ‖[A B; C D]‖_F`. `None` means `10·(n + max(m, p))·ε`.
+    pub rank_tolerance: Option<f64>,
+    /// Relative tolerance under which an eigenvalue of the reduced pencil counts as
+    /// infinite (see [`qz::GeneralizedEigenvalue::is_infinite`]). Default √ε.
+    pub infinite_tolerance: f64,
+}
+
+impl Default for ZerosParams {
+    fn default() -> Self {
+        ZerosParams {
+            rank_tolerance: None,
+            infinite_tolerance: qz::QzParams::default().infinite_tolerance,
+        }
+    }
+}
+
+/// The regular pencil `A_f − λB_f` (both `n_f×n_f`, B_f nonsingular up to the rank
+/// tolerance) whose eigenvalues are the finite zeros of a model.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ZeroPencil {
+    /// `A_f`.
+    pub a: DMatrix<f64>,
+    /// `B_f`.
+    pub b: DMatrix<f64>,
+    /// Normal rank of the transfer matrix G(s) = C(sI − A)⁻¹B + D (the normal rank of
+    /// S(λ) is n plus this), as decided by the rank tolerance.
+    pub normal_rank: usize,
+}
+
+/// The transmission zeros of (A, B, C, D), sorted by [`crate::numeric::order`] (ascending
+/// real part, then imaginary part), with default [`ZerosParams`].
+///
+/// Mathematics: the finite λ where S(λ) = [A − λI, B; C, D] drops below its normal rank —
+/// the invariant zeros of the realization. For a minimal realization they are the
+/// transmission zeros of G(s) = C(sI − A)⁻¹B + D; for a non-minimal one they also include
+/// decoupling zeros: when G(s) has full normal rank, an unobservable mode (if p ≥ m) or an
+/// uncontrollable mode (if p ≤ m) cancels from G(s) but stays a zero of S. Works for any
+/// n ≥ 0, m, p (square or not, D zero or not).
+///
+/// Algorithm: see [`zero_pencil`] (Emami-Naeini & Van Dooren 1982, "Computation of zeros of
+/// linear multivariable systems", Automatica), then the finite generalized eigenvalues of
+/// the reduced pencil by QZ (Moler & Stewart 1973). Cost: two SVDs of at most
+/// (n + max(m, p))² entries per reduction step, O((n + max(m, p))³) each, with at most n
+/// steps and usually a few; then O(n_f³) for QZ on the n_f×n_f reduced pencil.
+///
+/// Tolerance: rank decisions treat singular values at most `10·(n + max(m, p))·ε·‖S‖_F`
+/// as zero (S = [A B; C D]); the zeros are then exact for a model whose system matrix is
+/// within about that distance of the input's (plus the backward error of QZ).
+///
+/// Errors: A not square; B without n rows, C without n columns, D not p×m; non-finite
+/// entries; [`NumError::NoConvergence`] from an SVD or QZ.
+pub fn transmission_zeros(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    c: &DMatrix<f64>,
+    d: &DMatrix<f64>,
+) -> NumResult<Vec<Complex<f64>>> {
+    transmission_zeros_with(a, b, c, d, &ZerosParams::default())
+}
+
+/// [`transmission_zeros`] with explicit tolerances: `params.rank_tolerance` (relative to
+/// ‖[A B; C D]‖_F) for the rank decisions of the reduction, `params.infinite_tolerance` for
+/// discarding eigenvalues of the reduced pencil that are numerically infinite (see
+/// [`qz::GeneralizedEigenvalue::is_infinite`]). Errors as [`zero_pencil`].
+pub fn transmission_zeros_with(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    c: &DMatrix<f64>,
+    d: &DMatrix<f64>,
+    params: &ZerosParams,
+) -> NumResult<Vec<Complex<f64>>> {
+    let pencil = zero_pencil(a, b, c, d, params)?;
+    qz::finite_generalized_eigenvalues(&pencil.a, &pencil.b, params.infinite_tolerance)
+}
+
+/// Extracts from S(λ) = [A − λI, B; C, D] a regular pencil `A_f − λB_f` with the same finite
+/// zeros (Emami-Naeini & Van Dooren 1982, "Computation of zeros of linear multivariable
+/// systems", Automatica 18(4); the procedure of Van Dooren 1979, "The computation of
+/// Kronecker's canonical form of a singular pencil", Linear Algebra Appl. 27).
+///
+/// Algorithm: (1) repeat: compress the rows of D by an SVD (U·D = [0; D̃], D̃ of full row
+/// rank ρ); stop if ρ = p; compress the rows of the part C₁ of U·C beside the zero rows of
+/// U·D (rank μ; if μ = 0 those rows are zero and are dropped); with an orthogonal state
+/// transformation W make C₁W = [0, Ĉ], Ĉ μ×μ invertible; the μ rows [0 Ĉ 0] and the μ
+/// states beside Ĉ split off a constant invertible block, leaving the smaller model
+/// (A₁₁, B₁, [A₂₁; C₂₁], [B₂; D̃]) with the same zeros. This ends with D of full row rank,
+/// which is the normal rank of G(s). (2) The same on the dual model (Aᵀ, Cᵀ, Bᵀ, Dᵀ), after
+/// which D is square and invertible. (3) An orthogonal column compression
+/// [C D]·W = [0, Y] (Y invertible) leaves A_f = ([A B]·W)(:, 1..n_f) and
+/// B_f = ([I 0]·W)(:, 1..n_f). Orthogonal transformations only, so the pencil is exact for a
+/// model within the rank tolerance of the input.
+///
+/// Tolerance: see [`ZerosParams::rank_tolerance`].
+///
+/// Errors: as [`transmission_zeros`]; `rank_tolerance` negative or not finite.
+pub fn zero_pencil(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    c: &DMatrix<f64>,
+    d: &DMatrix<f64>,
+    params: &ZerosParams,
+) -> NumResult<ZeroPencil> {
+    let (n, m, p) = check_model(a, b, c, d)?;
+    let rel = params
+        .rank_tolerance
+        .unwrap_or(10.0 * (n + m.max(p)) as f64 * f64::EPSILON);
+    if !(rel.is_finite() && rel >= 0.0) {
+        return Err(NumError::invalid(
+            "rank_tolerance",
+            format!("expected a finite number ≥ 0, found {rel}"),
+        ));
+    }
+    if !(params.infinite_tolerance.is_finite() && params.infinite_tolerance >= 0.0) {
+        return Err(NumError::invalid(
+            "infinite_tolerance",
+            format!(
+                "expected a finite number ≥ 0, found {}",
+                params.infinite_tolerance
+            ),
+        ));
+    }
+    let norm = frobenius(a)
+        .hypot(frobenius(b))
+        .hypot(frobenius(c).hypot(frobenius(d)));
+    let thr = rel * norm;
+
+    // (1) D of full row rank.
+    let first = reduce(
+        Model {
+            a: a.clone(),
+            b: b.clone(),
+            c: c.clone(),
+            d: d.clone(),
+        },
+        thr,
+    )?;
+    let normal_rank = first.d.nrows();
+    // (2) The dual model: D square and invertible.
+    let dual = reduce(
+        Model {
+            a: first.a.transpose(),
+            b: first.c.transpose(),
+            c: first.b.transpose(),
+            d: first.d.transpose(),
+        },
+        thr,
+    )?;
+    let (af, bf, cf, df) = (
+        dual.a.transpose(),
+        dual.c.transpose(),
+        dual.b.transpose(),
+        dual.d.transpose(),
+    );
+    let nf = af.nrows();
+    let (pf, mf) = df.shape();
+    if pf != mf {
+        return Err(NumError::no_solution(
+            "transmission zeros",
+            format!(
+                "the reduced system pencil is not square ({pf} outputs, {mf} inputs); \
+                 hint: the rank tolerance {rel:e} is too close to a singular value"
+            ),
+        ));
+    }
+    // (3) [C D]·W = [0, Y]: W = Vᵀ with V·[C D]ᵀ = [0; Yᵀ].
+    let mut cd = DMatrix::zeros(pf, nf + mf);
+    cd.view_mut((0, 0), (pf, nf)).copy_from(&cf);
+    cd.view_mut((0, nf), (pf, mf)).copy_from(&df);
+    let (v, _) = row_compress(&cd.transpose(), thr)?;
+    let w = v.transpose();
+    let mut ab = DMatrix::zeros(nf, nf + mf);
+    ab.view_mut((0, 0), (nf, nf)).copy_from(&af);
+    ab.view_mut((0, nf), (nf, mf)).copy_from(&bf);
+    let w1 = w.columns(0, nf);
+    Ok(ZeroPencil {
+        a: &ab * w1,
+        b: w1.rows(0, nf).into_owned(),
+        normal_rank,
+    })
+}
+
+/// A model (A, B, C, D) being reduced.
+struct Model {
+    a: DMatrix<f64>,
+    b: DMatrix<f64>,
+    c: DMatrix<f64>,
+    d: DMatrix<f64>,
+}
+
+/// Step (1) of [`zero_pencil`]: a model with the same finite zeros and D of full row rank.
+fn reduce(mut s: Model, thr: f64) -> NumResult<Model> {
+    loop {
+        let n = s.a.nrows();
+        let p = s.c.nrows();
+        if p == 0 {
+            return Ok(s);
+        }
+        let (u, rho) = row_compress(&s.d, thr)?;
+        let c = &u * &s.c;
+        let d = &u * &s.d;
+        let k = p - rho;
+        if k == 0 {
+            return Ok(Model {
+                a: s.a,
+                b: s.b,
+                c,
+                d,
+            });
+        }
+        let c1 = c.rows(0, k).into_owned();
+        let c2 = c.rows(k, rho).into_owned();
+        let d2 = d.rows(k, rho).into_owned();
+        let (v, mu) = row_compress(&c1, thr)?;
+        if mu == 0 {
+            // The k rows [C₁ 0] are negligible: drop them; D̃ has full row rank.
+            return Ok(Model {
+                a: s.a,
+                b: s.b,
+                c: c2,
+                d: d2,
+            });
+        }
+        let c_hat = (&v * &c1).rows(k - mu, mu).into_owned();
+        // W with Ĉ·W = [0, Ĉ₂]: W = Vᵀ for V·Ĉᵀ = [0; Ĉ₂ᵀ]. Ĉ has full row rank μ, so the
+        // n − μ zero rows of V·Ĉᵀ are exactly the padding's zero singular values.
+        let (wt, _) = row_compress(&c_hat.transpose(), thr)?;
+        let w = wt.transpose();
+        let a = &wt * &s.a * &w;
+        let b = &wt * &s.b;
+        let c2 = c2 * &w;
+        let n1 = n - mu;
+        let m = b.ncols();
+        let mut c_new = DMatrix::zeros(mu + rho, n1);
+        c_new
+            .view_mut((0, 0), (mu, n1))
+            .copy_from(&a.view((n1, 0), (mu, n1)));
+        c_new
+            .view_mut((mu, 0), (rho, n1))
+            .copy_from(&c2.columns(0, n1));
+        let mut d_new = DMatrix::zeros(mu + rho, m);
+        d_new.view_mut((0, 0), (mu, m)).copy_from(&b.rows(n1, mu));
+        d_new.view_mut((mu, 0), (rho, m)).copy_from(&d2);
+        s = Model {
+            a: a.view((0, 0), (n1, n1)).into_owned(),
+            b: b.rows(0, n1).into_owned(),
+            c: c_new,
+            d: d_new,
+        };
+    }
+}
+
+/// Orthogonal U (r×r) with U·M = [0; M̃], M̃ of full row rank, and that rank: the number of
+/// singular values of M above `thr`. Rows of U are M's left singular vectors, smallest
+/// singular value first.
+fn row_compress(m: &DMatrix<f64>, thr: f64) -> NumResult<(DMatrix<f64>, usize)> {
+    let (r, c) = m.shape();
+    if r == 0 || c == 0 {
+        return Ok((DMatrix::identity(r, r), 0));
+    }
+    // Pad a tall matrix with zero columns so that the thin SVD yields a full r×r U.
+    let work = if c < r {
+        let mut padded = DMatrix::zeros(r, r);
+        padded.view_mut((0, 0), (r, c)).copy_from(m);
+        padded
+    } else {
+        m.clone()
+    };
+    let max_iterations = 1000 * (r + c);
+    let svd = SVD::try_new(work, true, false, f64::EPSILON, max_iterations).ok_or_else(|| {
+        NumError::NoConvergence {
+            what: "singular value decomposition".to_string(),
+            iterations: max_iterations,
+        }
+    })?;
+    let u = svd.u.ok_or_else(|| NumError::NoConvergence {
+        what: "singular value decomposition".to_string(),
+        iterations: 0,
+    })?;
+    let rank = svd.singular_values.iter().filter(|&&s| s > thr).count();
+    Ok((DMatrix::from_fn(r, r, |i, j| u[(j, r - 1 - i)]), rank))
+}
+
+fn check_model(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    c: &DMatrix<f64>,
+    d: &DMatrix<f64>,
+) -> NumResult<(usize, usize, usize)> {
+    let n = check::finite_square("A", a)?;
+    if b.nrows() != n {
+        return Err(NumError::shape(
+            "B",
+            format!("{n} rows (one per state, as A is {n}×{n})"),
+            check::shape_of(b),
+        ));
+    }
+    if c.ncols() != n {
+        return Err(NumError::shape(
+            "C",
+            format!("{n} columns (one per state, as A is {n}×{n})"),
+            check::shape_of(c),
+        ));
+    }
+    let (m, p) = (b.ncols(), c.nrows());
+    if d.shape() != (p, m) {
+        return Err(NumError::shape(
+            "D",
+            format!("{p}×{m} (outputs of C × inputs of B)"),
+            check::shape_of(d),
+        ));
+    }
+    check::finite("B", b)?;
+    check::finite("C", c)?;
+    check::finite("D", d)?;
+    Ok((n, m, p))
+}
+
+/// Frobenius norm, scaled so that it neither overflows nor underflows.
+fn frobenius(m: &DMatrix<f64>) -> f64 {
+    let big = m.iter().fold(0.0f64, |acc, x| acc.max(x.abs()));
+    if big == 0.0 {
+        return 0.0;
+    }
+    big * m.iter().map(|x| (x / big) * (x / big)).sum::<f64>().sqrt()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::numeric::testing::Rng;
+
+    fn mat(rows: usize, cols: usize, v: &[f64]) -> DMatrix<f64> {
+        DMatrix::from_row_slice(rows, cols, v)
+    }
+
+    fn real(v: &[f64]) -> Vec<Complex<f64>> {
+        v.iter().map(|&x| Complex::new(x, 0.0)).collect()
+    }
+
+    /// Same length, and entrywise agreement within `tol·(1 + |w|)` in real and imaginary
+    /// parts (both lists sorted by the ordering convention).
+    fn assert_zeros(got: &[Complex<f64>], want: &[Complex<f64>], tol: f64) {
+        assert_eq!(got.len(), want.len(), "got {got:?}, want {want:?}");
+        for (g, w) in got.iter().zip(want) {
+            let abs = tol * (1.0 + w.norm());
+            crate::assert_close!(g.re, w.re, abs, 0.0);
+            crate::assert_close!(g.im, w.im, abs, 0.0);
+        }
+    }
+
+    /// Controllable companion form of (c₀ + c₁s + … + c_{n−1}s^{n−1}) /
+    /// (s^n + a_{n−1}s^{n−1} + … + a₀): A has ones on the superdiagonal and last row
+    /// [−a₀, …, −a_{n−1}], B = e_n, C = [c₀, …, c_{n−1}] (each column of C a numerator;
+    /// common practice, no source: C(sI − A)⁻¹e_n = C·[1, s, …, s^{n−1}]ᵀ / den(s)).
+    fn companion(den: &[f64], nums: &[&[f64]]) -> (DMatrix<f64>, DMatrix<f64>, DMatrix<f64>) {
+        let n = den.len();
+        let mut a = DMatrix::zeros(n, n);
+        for k in 0..n - 1 {
+            a[(k, k + 1)] = 1.0;
+        }
+        for (k, ak) in den.iter().enumerate() {
+            a[(n - 1, k)] = -ak;
+        }
+        let mut b = DMatrix::zeros(n, 1);
+        b[(n - 1, 0)] = 1.0;
+        let c = DMatrix::from_fn(nums.len(), n, |i, j| nums[i][j]);
+        (a, b, c)
+    }
+
+    /// σ_min(S(z)) / (‖[A B; C D]‖ + |z|) for the system matrix S(z): zero at an exact
+    /// zero of a model whose S(λ) has full column rank.
+    fn rank_drop(
+        a: &DMatrix<f64>,
+        b: &DMatrix<f64>,
+        c: &DMatrix<f64>,
+        d: &DMatrix<f64>,
+        z: Complex<f64>,
+    ) -> f64 {
+        let (n, m, p) = (a.nrows(), b.ncols(), c.nrows());
+        let mut s = DMatrix::<Complex<f64>>::zeros(n + p, n + m);
+        for i in 0..n {
+            for j in 0..n {
+                s[(i, j)] =
+                    Complex::new(a[(i, j)], 0.0) - if i == j { z } else { Complex::new(0.0, 0.0) };
+            }
+            for j in 0..m {
+                s[(i, n + j)] = Complex::new(b[(i, j)], 0.0);
+            }
+        }
+        for i in 0..p {
+            for j in 0..n {
+                s[(n + i, j)] = Complex::new(c[(i, j)], 0.0);
+            }
+            for j in 0..m {
+                s[(n + i, n + j)] = Complex::new(d[(i, j)], 0.0);
+            }
+        }
+        let smin = s
+            .singular_values()
+            .iter()
+            .fold(f64::INFINITY, |acc, x| acc.min(*x));
+        let norm =
+            (a.norm_squared() + b.norm_squared() + c.norm_squared() + d.norm_squared()).sqrt();
+        smin / (norm + z.norm())
+    }
+
+    #[test]
+    fn siso_zeros_are_numerator_roots() {
+        // G(s) = (s+2)(s−3) / ((s+1)(s+4)(s+5)) = (s² − s − 6) / (s³ + 10s² + 29s + 20):
+        // companion form with den = [20, 29, 10], num = [−6, −1, 1]; zeros −2 and 3
+        // (roots of the numerator, which shares no root with the denominator).
+        let (a, b, c) = companion(&[20.0, 29.0, 10.0], &[&[-6.0, -1.0, 1.0]]);
+        let d = DMatrix::zeros(1, 1);
+        let z = transmission_zeros(&a, &b, &c, &d).expect("zeros");
+        assert_zeros(&z, &real(&[-2.0, 3.0]), 1e-12);
+    }
+
+    #[test]
+    fn no_finite_zeros_for_constant_numerators() {
+        // G(s) = 1 / (s+1)(s+2)(s+3)(s+4)(s+5)(s+6): numerator 1, relative degree 6, so no
+        // finite zero (the infinite zero of order 6 is the classic source of spurious
+        // large "zeros" when the unreduced system pencil is fed to QZ). Denominator
+        // coefficients of ∏(s+k), k = 1..6: 720, 1764, 1624, 735, 175, 21 (expanded by hand).
+        let (a, b, c) = companion(
+            &[720.0, 1764.0, 1624.0, 735.0, 175.0, 21.0],
+            &[&[1.0, 0.0, 0.0, 0.0, 0.0, 0.0]],
+        );
+        let d = DMatrix::zeros(1, 1);
+        assert!(transmission_zeros(&a, &b, &c, &d)
+            .expect("zeros")
+            .is_empty());
+        // Numerator s²: a double zero at the origin.
+        let c2 = mat(1, 6, &[0.0, 0.0, 1.0, 0.0, 0.0, 0.0]);
+        let z = transmission_zeros(&a, &b, &c2, &d).expect("zeros");
+        assert_zeros(&z, &real(&[0.0, 0.0]), 1e-7);
+    }
+
+    #[test]
+    fn square_with_feedthrough() {
+        // G(s) = 1 + (−6) / (s² + 3s + 2) = (s² + 3s − 4) / (s² + 3s + 2), zeros −4 and 1;
+        // equivalently eig(A − B D⁻¹ C) = eig([[0, 1], [4, −3]]), λ² + 3λ − 4 = (λ+4)(λ−1).
+        let (a, b, c) = companion(&[2.0, 3.0], &[&[-6.0, 0.0]]);
+        let d = mat(1, 1, &[1.0]);
+        let z = transmission_zeros(&a, &b, &c, &d).expect("zeros");
+        assert_zeros(&z, &real(&[-4.0, 1.0]), 1e-12);
+    }
+
+    #[test]
+    fn mimo_two_by_two_hand_derived_zero() {
+        // A = diag(−1, −2, −3), B = [[1,0],[0,1],[1,1]], C = [[1,0,0],[0,1,1]], D = 0.
+        // A zero λ needs (A − λI)x + Bu = 0, Cx = 0. Cx = 0 gives x = (0, ξ, −ξ); the rows
+        // of (A − λI)x + Bu = 0 read u₁ = 0, −(2+λ)ξ + u₂ = 0, (3+λ)ξ + u₁ + u₂ = 0, hence
+        // (5 + 2λ)ξ = 0: the single zero λ = −5/2.
+        let a = DMatrix::from_diagonal(&nalgebra::DVector::from_row_slice(&[-1.0, -2.0, -3.0]));
+        let b = mat(3, 2, &[1.0, 0.0, 0.0, 1.0, 1.0, 1.0]);
+        let c = mat(2, 3, &[1.0, 0.0, 0.0, 0.0, 1.0, 1.0]);
+        let d = DMatrix::zeros(2, 2);
+        let z = transmission_zeros(&a, &b, &c, &d).expect("zeros");
+        assert_zeros(&z, &real(&[-2.5]), 1e-12);
+        assert!(rank_drop(&a, &b, &c, &d, z[0]) < 1e-14);
+    }
+
+    #[test]
+    fn tall_model_has_only_common_zeros() {
+        // Two outputs, one input, den = (s+1)(s+3)(s+4) = s³ + 8s² + 19s + 12,
+        // numerators (s+2)(s+4) = s² + 6s + 8 and (s+2)(s+5) = s² + 7s + 10. In companion
+        // form every solution of (A − λI)x + Bu = 0 is x = ξ(1, λ, λ²), so Cx = 0 needs both
+        // numerators to vanish: the only zero is the common root −2 (−4 is a root of the
+        // first channel only, so no mode is unobservable).
+        let den = [12.0, 19.0, 8.0];
+        let (a, b, c) = companion(&den, &[&[8.0, 6.0, 1.0], &[10.0, 7.0, 1.0]]);
+        let d = DMatrix::zeros(2, 1);
+        let z = transmission_zeros(&a, &b, &c, &d).expect("zeros");
+        assert_zeros(&z, &real(&[-2.0]), 1e-12);
+        let pencil = zero_pencil(&a, &b, &c, &d, &ZerosParams::default()).expect("pencil");
+        assert_eq!(pencil.normal_rank, 1);
+        // The dual (wide) model (Aᵀ, Cᵀ, Bᵀ, Dᵀ) has the same zeros (S transposed).
+        let zt = transmission_zeros(
+            &a.transpose(),
+            &c.transpose(),
+            &b.transpose(),
+            &d.transpose(),
+        )
+        .expect("zeros");
+        assert_zeros(&zt, &real(&[-2.0]), 1e-12);
+        // Numerators s + 2 and s + 5 have no common root: no zero at all.
+        let (a, b, c) = companion(&den, &[&[2.0, 1.0, 0.0], &[5.0, 1.0, 0.0]]);
+        assert!(transmission_zeros(&a, &b, &c, &d)
+            .expect("zeros")
+            .is_empty());
+    }
+
+    #[test]
+    fn zero_that_cancels_a_pole_stays_a_zero_of_the_realization() {
+        // G(s) = (s+1) / ((s+1)(s+2)) in companion form (den [2, 3], num [1, 1]): the mode
+        // −1 is unobservable (C·(1, −1)ᵀ = 0 for the eigenvector (1, −1) of A), so S(−1)
+        // drops rank: −1 is an invariant (output-decoupling) zero although G = 1/(s+2).
+        let (a, b, c) = companion(&[2.0, 3.0], &[&[1.0, 1.0]]);
+        let d = DMatrix::zeros(1, 1);
+        let z = transmission_zeros(&a, &b, &c, &d).expect("zeros");
+        assert_zeros(&z, &real(&[-1.0]), 1e-12);
+        // The minimal realization of 1/(s+2) has no zero.
+        let one = mat(1, 1, &[1.0]);
+        assert!(transmission_zeros(&mat(1, 1, &[-2.0]), &one, &one, &d)
+            .expect("zeros")
+            .is_empty());
+    }
+
+    #[test]
+    fn static_gain_has_no_zeros() {
+        // n = 0: S(λ) = D does not depend on λ, so there is no finite zero.
+        let e = DMatrix::<f64>::zeros(0, 0);
+        for (p, m) in [(2usize, 2usize), (2, 3), (3, 1), (0, 2), (2, 0)] {
+            let d = Rng::new(p as u64 * 7 + m as u64).matrix(p, m);
+            let z = transmission_zeros(&e, &DMatrix::zeros(0, m), &DMatrix::zeros(p, 0), &d)
+                .expect("zeros");
+            assert!(z.is_empty(), "{p}×{m}: {z:?}");
+        }
+        let z = transmission_zeros(
+            &e,
+            &DMatrix::zeros(0, 1),
+            &DMatrix::zeros(1, 0),
+            &DMatrix::zeros(1, 1),
+        );
+        assert!(z.expect("zeros").is_empty());
+    }
+
+    #[test]
+    fn degenerate_models_give_no_spurious_zeros() {
+        // An extra input that reaches nothing (zero column in B and D) leaves the zeros of
+        // the first channel, −2 and 3 (S gains a zero column, which changes no rank drop).
+        let (a, b1, c) = companion(&[20.0, 29.0, 10.0], &[&[-6.0, -1.0, 1.0]]);
+        let mut b = DMatrix::zeros(3, 2);
+        b.set_column(0, &b1.column(0));
+        let d = DMatrix::zeros(1, 2);
+        let z = transmission_zeros(&a, &b, &c, &d).expect("zeros");
+        assert_zeros(&z, &real(&[-2.0, 3.0]), 1e-12);
+        // G ≡ 0 (C = 0, D = 0) with (A, B) controllable: S(λ) = [A − λI, B; 0, 0] has normal
+        // rank n and never less (controllability, Hautus test), so no zeros.
+        let c0 = DMatrix::zeros(2, 3);
+        let d0 = DMatrix::zeros(2, 1);
+        assert!(transmission_zeros(&a, &b1, &c0, &d0)
+            .expect("zeros")
+            .is_empty());
+        let pencil = zero_pencil(&a, &b1, &c0, &d0, &ZerosParams::default()).expect("pencil");
+        assert_eq!(pencil.normal_rank, 0);
+        // Everything zero: S(λ) = [−λI, 0; 0, 0] drops rank only at λ = 0 (n-fold).
+        let z = transmission_zeros(
+            &DMatrix::zeros(3, 3),
+            &DMatrix::zeros(3, 2),
+            &DMatrix::zeros(2, 3),
+            &DMatrix::zeros(2, 2),
+        )
+        .expect("zeros");
+        assert_zeros(&z, &real(&[0.0, 0.0, 0.0]), 0.0);
+    }
+
+    #[test]
+    fn random_square_models() {
+        let mut rng = Rng::new(31);
+        for &(n, m) in &[(1usize, 1usize), (2, 1), (3, 2), (6, 2), (10, 3), (20, 4)] {
+            let a = rng.matrix(n, n);
+            let b = rng.matrix(n, m);
+            let c = rng.matrix(m, n);
+            // D = 0 and CB invertible (generic): n − m finite zeros (common practice, no
+            // source: the infinite zeros all have order one), each a rank drop of S.
+            let d = DMatrix::zeros(m, m);
+            let z = transmission_zeros(&a, &b, &c, &d).expect("zeros");
+            assert_eq!(z.len(), n - m, "n = {n}, m = {m}: {z:?}");
+            for zk in &z {
+                assert!(rank_drop(&a, &b, &c, &d, *zk) < 1e-11, "n = {n}: {zk}");
+            }
+            // D invertible: the zeros are the n eigenvalues of A − B D⁻¹ C (reference:
+            // nalgebra's LU solve and complex_eigenvalues).
+            let d = rng.matrix(m, m) + DMatrix::identity(m, m) * 3.0;
+            let dic = d.clone().lu().solve(&c).expect("D invertible");
+            let want: Vec<Complex<f64>> = (&a - &b * dic)
+                .complex_eigenvalues()
+                .iter()
+                .copied()
+                .collect();
+            let got = transmission_zeros(&a, &b, &c, &d).expect("zeros");
+            assert_eq!(got.len(), n);
+            for w in &want {
+                let best = got
+                    .iter()
+                    .fold(f64::INFINITY, |acc, g| acc.min((g - w).norm()));
+                assert!(
+                    best < 1e-8 * (1.0 + w.norm()),
+                    "n = {n}: {w} not in {got:?}"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn random_non_square_models_have_no_zeros() {
+        // A generic model with p ≠ m has no zeros (S(λ) keeps full rank for every λ;
+        // common practice, no source). Naive square-ups of the pencil would invent some.
+        let mut rng = Rng::new(41);
+        for &(n, m, p) in &[
+            (1usize, 1usize, 2usize),
+            (5, 1, 2),
+            (5, 2, 1),
+            (8, 2, 3),
+            (8, 3, 1),
+            (12, 1, 4),
+        ] {
+            let (a, b, c) = (rng.matrix(n, n), rng.matrix(n, m), rng.matrix(p, n));
+            for d in [DMatrix::zeros(p, m), rng.matrix(p, m)] {
+                let z = transmission_zeros(&a, &b, &c, &d).expect("zeros");
+                assert!(z.is_empty(), "n = {n}, m = {m}, p = {p}: {z:?}");
+            }
+        }
+    }
+
+    #[test]
+    fn zeros_invariant_under_similarity() {
+        // (T⁻¹AT, T⁻¹B, CT, D) has the same zeros (common practice, no source); checked on
+        // the tall model of `tall_model_has_only_common_zeros` (zero −2) and a random
+        // square one.
+        let mut rng = Rng::new(55);
+        let (a, b, c) = companion(&[12.0, 19.0, 8.0], &[&[8.0, 6.0, 1.0], &[10.0, 7.0, 1.0]]);
+        let (ra, rb, rc) = (rng.matrix(6, 6), rng.matrix(6, 2), rng.matrix(2, 6));
+        for (a, b, c) in [(a, b, c), (ra, rb, rc)] {
+            let (n, m, p) = (a.nrows(), b.ncols(), c.nrows());
+            let d = DMatrix::zeros(p, m);
+            let t = rng.matrix(n, n) + DMatrix::identity(n, n) * 4.0;
+            let ti = t.clone().try_inverse().expect("T invertible");
+            let z1 = transmission_zeros(&a, &b, &c, &d).expect("zeros");
+            let z2 =
+                transmission_zeros(&(&ti * &a * &t), &(&ti * &b), &(&c * &t), &d).expect("zeros");
+            assert_eq!(z1.len(), z2.len(), "{z1:?} vs {z2:?}");
+            for (x, y) in z1.iter().zip(&z2) {
+                assert!((x - y).norm() < 1e-8 * (1.0 + x.norm()), "{z1:?} vs {z2:?}");
+            }
+        }
+    }
+
+    #[test]
+    fn shape_errors_name_the_argument() {
+        let a = DMatrix::zeros(3, 3);
+        let b = DMatrix::zeros(3, 2);
+        let c = DMatrix::zeros(1, 3);
+        let d = DMatrix::zeros(1, 2);
+        let e = |r: NumResult<Vec<Complex<f64>>>| r.expect_err("shape").to_string();
+        assert_eq!(
+            e(transmission_zeros(&DMatrix::zeros(3, 2), &b, &c, &d)),
+            "A: expected a square matrix, found 3×2"
+        );
+        assert_eq!(
+            e(transmission_zeros(&a, &DMatrix::zeros(2, 2), &c, &d)),
+            "B: expected 3 rows (one per state, as A is 3×3), found 2×2"
+        );
+        assert_eq!(
+            e(transmission_zeros(&a, &b, &DMatrix::zeros(1, 4), &d)),
+            "C: expected 3 columns (one per state, as A is 3×3), found 1×4"
+        );
+        assert_eq!(
+            e(transmission_zeros(&a, &b, &c, &DMatrix::zeros(2, 1))),
+            "D: expected 1×2 (outputs of C × inputs of B), found 2×1"
+        );
+        let mut bad = d.clone();
+        bad[(0, 1)] = f64::INFINITY;
+        assert_eq!(
+            e(transmission_zeros(&a, &b, &c, &bad)),
+            "D: entry (0, 1) is inf, expected a finite number"
+        );
+        let params = ZerosParams {
+            rank_tolerance: Some(-1.0),
+            ..ZerosParams::default()
+        };
+        assert!(transmission_zeros_with(&a, &b, &c, &d, &params).is_err());
+    }
+}

@@ -1,0 +1,221 @@
+//! The interactive prompt: history, multi-line entry while brackets or an expression are
+//! incomplete, completion of built-ins and variables, `help NAME`, and the value of each
+//! expression shown. When stdin is not a terminal it reads statements line by line
+//! (continuation lines included) and prints results without prompt noise, so it can be
+//! scripted.
+
+mod complete;
+pub mod input;
+
+use crate::notebook::output::Output;
+use crate::{Session, SessionOptions};
+use complete::ReplHelper;
+use input::{is_incomplete, Command};
+use rustyline::error::ReadlineError;
+use std::io::{BufRead, IsTerminal, Write};
+use std::path::PathBuf;
+use std::sync::{Arc, Mutex};
+
+/// Starts the REPL; returns the process exit code.
+pub fn start(options: SessionOptions) -> u8 {
+    let mut repl = Repl::new(options);
+    if std::io::stdin().is_terminal() {
+        repl.interactive()
+    } else {
+        repl.piped()
+    }
+}
+
+struct Repl {
+    session: Session,
+    figures: usize,
+    plots_dir: PathBuf,
+    names: Arc<Mutex<Vec<String>>>,
+    log: Option<std::fs::File>,
+}
+
+impl Repl {
+    fn new(options: SessionOptions) -> Self {
+        let plots_dir = options.root.join("plots");
+        Repl {
+            session: Session::new(&options),
+            figures: 0,
+            plots_dir,
+            names: Arc::new(Mutex::new(Vec::new())),
+            log: None,
+        }
+    }
+
+    /// Runs one complete input; prints its outputs; returns false on error.
+    fn run(&mut self, code: &str, out: &mut dyn Write, err: &mut dyn Write) -> bool {
+        match input::command(code) {
+            Some(Command::Help(name)) => {
+                let text = match name.as_deref() {
+                    None => crate::script::docs::overview(),
+                    Some(n) => match crate::script::docs::find(n) {
+                        Some(d) => crate::script::docs::page(&d) + "\n",
+                        None => format!("no built-in named '{n}' (`help` lists them all)\n"),
+                    },
+                };
+                let _ = write!(out, "{text}");
+                return true;
+            }
+            Some(Command::Quit) | None => {}
+        }
+        let result = self.session.eval(code);
+        let mut outputs = self.session.take_outputs();
+        let ok = match result {
+            Ok(v) => {
+                outputs.extend(self.session.show_value(v));
+                true
+            }
+            Err(e) => {
+                outputs.push(Output::Error(e.render("<repl>", code)));
+                false
+            }
+        };
+        for o in outputs {
+            self.print_output(o, out, err);
+        }
+        if let Ok(mut n) = self.names.lock() {
+            *n = self.session.variable_names();
+            n.extend(self.session.function_names());
+        }
+        ok
+    }
+
+    fn print_output(&mut self, o: Output, out: &mut dyn Write, err: &mut dyn Write) {
+        match o {
+            Output::Text(t) | Output::Value(t) => {
+                let _ = writeln!(out, "{t}");
+            }
+            Output::Note(n) => {
+                let _ = writeln!(out, "{n}");
+            }
+            Output::Warning(w) => {
+                let _ = writeln!(err, "warning: {w}");
+            }
+            Output::Error(e) => {
+                let _ = writeln!(err, "{e}");
+            }
+            Output::Figure { svg, .. } => {
+                self.figures += 1;
+                let path = self
+                    .plots_dir
+                    .join(format!("figure-{:03}.svg", self.figures));
+                let saved = std::fs::create_dir_all(&self.plots_dir)
+                    .and_then(|_| crate::sandbox::write_atomic(&path, svg.as_bytes()));
+                match saved {
+                    Ok(()) => {
+                        let _ = writeln!(out, "figure saved to {}", path.display());
+                    }
+                    Err(e) => {
+                        let _ =
+                            writeln!(err, "error: cannot save figure to {}: {e}", path.display());
+                    }
+                }
+            }
+        }
+    }
+
+    fn log_input(&mut self, code: &str) {
+        if let Some(f) = self.log.as_mut() {
+            let _ = writeln!(f, "{code}");
+            let _ = f.flush();
+        }
+    }
+
+    fn interactive(&mut self) -> u8 {
+        let config = rustyline::Config::builder()
+            .auto_add_history(false)
+            .completion_type(rustyline::CompletionType::List)
+            .build();
+        let mut editor: rustyline::Editor<ReplHelper, rustyline::history::DefaultHistory> =
+            match rustyline::Editor::with_config(config) {
+                Ok(e) => e,
+                Err(e) => {
+                    eprintln!("error: cannot start the interactive prompt: {e}");
+                    return 1;
+                }
+            };
+        editor.set_helper(Some(ReplHelper::new(self.names.clone())));
+        let history = history_path();
+        if let Some(h) = &history {
+            let _ = editor.load_history(h);
+        }
+        self.log = input::open_session_log(&self.session_log_dir());
+        println!(
+            "statebook {} — type an expression, `help` for the built-ins, `help NAME` for one, \
+             `quit` to leave",
+            env!("CARGO_PKG_VERSION")
+        );
+        loop {
+            match editor.readline("sb> ") {
+                Ok(line) => {
+                    if line.trim().is_empty() {
+                        continue;
+                    }
+                    let _ = editor.add_history_entry(line.as_str());
+                    if matches!(input::command(&line), Some(Command::Quit)) {
+                        break;
+                    }
+                    self.log_input(&line);
+                    let (mut o, mut e) = (std::io::stdout(), std::io::stderr());
+                    self.run(&line, &mut o, &mut e);
+                }
+                Err(ReadlineError::Interrupted) => continue,
+                Err(ReadlineError::Eof) => break,
+                Err(e) => {
+                    eprintln!("error: {e}");
+                    break;
+                }
+            }
+        }
+        if let Some(h) = &history {
+            if let Some(dir) = h.parent() {
+                let _ = std::fs::create_dir_all(dir);
+            }
+            let _ = editor.save_history(h);
+        }
+        0
+    }
+
+    fn session_log_dir(&self) -> PathBuf {
+        self.session.root().join(".statebook").join("sessions")
+    }
+
+    fn piped(&mut self) -> u8 {
+        let stdin = std::io::stdin();
+        let (mut out, mut err) = (std::io::stdout().lock(), std::io::stderr().lock());
+        let mut buffer = String::new();
+        let mut failed = false;
+        for line in stdin.lock().lines() {
+            let Ok(line) = line else { break };
+            if buffer.is_empty() && line.trim().is_empty() {
+                continue;
+            }
+            if !buffer.is_empty() {
+                buffer.push('\n');
+            }
+            buffer.push_str(&line);
+            if is_incomplete(&buffer) {
+                continue;
+            }
+            if matches!(input::command(&buffer), Some(Command::Quit)) {
+                buffer.clear();
+                break;
+            }
+            let code = std::mem::take(&mut buffer);
+            failed |= !self.run(&code, &mut out, &mut err);
+        }
+        if !buffer.trim().is_empty() {
+            failed |= !self.run(&buffer, &mut out, &mut err);
+        }
+        let _ = out.flush();
+        u8::from(failed)
+    }
+}
+
+fn history_path() -> Option<PathBuf> {
+    std::env::var_os("HOME").map(|h| PathBuf::from(h).join(".statebook").join("history"))
+}

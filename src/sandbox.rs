@@ -1,0 +1,236 @@
+//! The one file-access policy and the resource limits, in one place.
+//!
+//! A script reads and writes only inside its root folder tree (the analysis file's folder;
+//! in the REPL, the working directory) plus folders the user widened it to on purpose
+//! (`--allow-read`, `--allow-write`). A path is judged after resolving `..` and symbolic
+//! links, so neither a relative escape, an absolute path nor a symlink can leave the tree.
+//! Scripts cannot run programs, open sockets or read environment variables: the engine
+//! offers no such functions and `eval` is disabled (see `script::engine`).
+
+use std::path::{Component, Path, PathBuf};
+
+/// Where a script may read and write.
+#[derive(Debug, Clone)]
+pub struct Sandbox {
+    root: PathBuf,
+    read: Vec<PathBuf>,
+    write: Vec<PathBuf>,
+}
+
+/// Resource limits for one session; defaults a normal analysis never meets.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Limits {
+    /// Script operations per cell (an endless loop stops after this many).
+    pub operations: u64,
+    /// Depth of nested function calls.
+    pub call_depth: usize,
+    /// Longest string, in bytes.
+    pub string_size: usize,
+    /// Longest array.
+    pub array_size: usize,
+    /// Largest matrix, in entries (checked before allocating).
+    pub matrix_entries: usize,
+    /// Wall-clock limit for a whole run, in seconds (0 = none).
+    pub timeout_seconds: f64,
+}
+
+impl Default for Limits {
+    fn default() -> Self {
+        Limits {
+            operations: 200_000_000,
+            call_depth: 200,
+            string_size: 64 * 1024 * 1024,
+            array_size: 50_000_000,
+            matrix_entries: 25_000_000,
+            timeout_seconds: 0.0,
+        }
+    }
+}
+
+/// Lexically normalises a path: removes `.` and resolves `..` against earlier parts.
+fn normalise(p: &Path) -> PathBuf {
+    let mut out = PathBuf::new();
+    for c in p.components() {
+        match c {
+            Component::CurDir => {}
+            Component::ParentDir => {
+                out.pop();
+            }
+            other => out.push(other.as_os_str()),
+        }
+    }
+    out
+}
+
+/// Resolves symbolic links in the longest existing prefix of `p`, then appends the rest.
+fn resolve(p: &Path) -> PathBuf {
+    let p = normalise(p);
+    let mut existing = p.clone();
+    let mut rest = Vec::new();
+    loop {
+        if let Ok(c) = existing.canonicalize() {
+            let mut out = c;
+            for r in rest.iter().rev() {
+                out.push(r);
+            }
+            return normalise(&out);
+        }
+        match (
+            existing.file_name().map(|f| f.to_os_string()),
+            existing.parent(),
+        ) {
+            (Some(name), Some(parent)) => {
+                rest.push(name);
+                existing = parent.to_path_buf();
+            }
+            _ => return p,
+        }
+    }
+}
+
+impl Sandbox {
+    /// A sandbox rooted at `root` (made absolute and resolved).
+    pub fn new(root: &Path) -> Self {
+        let abs = if root.is_absolute() {
+            root.to_path_buf()
+        } else {
+            std::env::current_dir().unwrap_or_default().join(root)
+        };
+        Sandbox {
+            root: resolve(&abs),
+            read: Vec::new(),
+            write: Vec::new(),
+        }
+    }
+
+    /// Also allows reading below `dir`.
+    pub fn allow_read(&mut self, dir: &Path) {
+        let d = Sandbox::new(dir).root;
+        self.read.push(d);
+    }
+
+    /// Also allows reading and writing below `dir`.
+    pub fn allow_write(&mut self, dir: &Path) {
+        let d = Sandbox::new(dir).root;
+        self.write.push(d);
+    }
+
+    /// The root folder.
+    pub fn root(&self) -> &Path {
+        &self.root
+    }
+
+    fn judge(&self, path: &str, writing: bool) -> Result<PathBuf, String> {
+        if path.is_empty() {
+            return Err("the path is empty".into());
+        }
+        let given = Path::new(path);
+        let joined = if given.is_absolute() {
+            given.to_path_buf()
+        } else {
+            self.root.join(given)
+        };
+        let real = resolve(&joined);
+        let inside = |dir: &PathBuf| real.starts_with(dir);
+        let ok = inside(&self.root)
+            || self.write.iter().any(inside)
+            || (!writing && self.read.iter().any(inside));
+        if ok {
+            Ok(real)
+        } else {
+            let verb = if writing { "write" } else { "read" };
+            let flag = if writing {
+                "--allow-write"
+            } else {
+                "--allow-read"
+            };
+            Err(format!(
+                "path '{path}' is outside the analysis folder {} (scripts may only {verb} inside \
+                 it)\nhint: to allow it on purpose, run with {flag} DIR",
+                self.root.display()
+            ))
+        }
+    }
+
+    /// The real path to read for `path` (relative to the root), or why it is refused.
+    pub fn read_path(&self, path: &str) -> Result<PathBuf, String> {
+        self.judge(path, false)
+    }
+
+    /// The real path to write for `path` (relative to the root), or why it is refused.
+    pub fn write_path(&self, path: &str) -> Result<PathBuf, String> {
+        self.judge(path, true)
+    }
+}
+
+/// Writes `bytes` to `path` through a temporary file in the same folder and a rename, so
+/// that a crash or a full disk never leaves a half-written file in place.
+pub fn write_atomic(path: &Path, bytes: &[u8]) -> std::io::Result<()> {
+    use std::io::Write;
+    let dir = path
+        .parent()
+        .filter(|d| !d.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
+    {
+        let mut f = std::fs::File::create(&tmp)?;
+        f.write_all(bytes)?;
+        f.sync_all()?;
+    }
+    std::fs::rename(&tmp, path).inspect_err(|_| {
+        let _ = std::fs::remove_file(&tmp);
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn temp_tree() -> PathBuf {
+        let d = std::env::temp_dir().join(format!("statebook-sandbox-{}", std::process::id()));
+        std::fs::create_dir_all(d.join("inner")).ok();
+        d
+    }
+
+    #[test]
+    fn relative_inside_is_allowed() {
+        let d = temp_tree();
+        let s = Sandbox::new(&d);
+        assert!(s.read_path("inner/data.csv").is_ok());
+        assert!(s.read_path("inner/../data.csv").is_ok());
+    }
+
+    #[test]
+    fn escapes_are_refused() {
+        let d = temp_tree();
+        let s = Sandbox::new(&d);
+        assert!(s.read_path("../outside.csv").is_err());
+        assert!(s.read_path("/etc/passwd").is_err());
+        assert!(s.write_path("inner/../../x").is_err());
+    }
+
+    #[cfg(unix)]
+    #[test]
+    fn symlink_out_is_refused() {
+        let d = temp_tree();
+        let link = d.join("link-out");
+        let _ = std::fs::remove_file(&link);
+        std::os::unix::fs::symlink("/etc", &link).ok();
+        let s = Sandbox::new(&d);
+        assert!(s.read_path("link-out/passwd").is_err());
+    }
+
+    #[test]
+    fn widened_on_purpose() {
+        let d = temp_tree();
+        let mut s = Sandbox::new(&d.join("inner"));
+        assert!(s.read_path("../x").is_err());
+        s.allow_read(&d);
+        assert!(s.read_path("../x").is_ok());
+        assert!(s.write_path("../x").is_err());
+    }
+}

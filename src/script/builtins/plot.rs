@@ -1,0 +1,241 @@
+//! Figures: `plot`, `fig.add`, `fig.save`. The drawing itself is `crate::plot`.
+
+use crate::plot::{Figure as PlotFigure, MarkerShape, PlotOptions, Series};
+use crate::script::convert::{fail, to_f64_vec, to_str, type_name, Rr};
+use crate::script::docs::Doc;
+use crate::script::state;
+use crate::script::types::Figure;
+use rhai::{Array, Dynamic, Engine, Map, NativeCallContext};
+
+/// Help entries of this file.
+pub const DOCS: &[Doc] = &[
+    Doc { name: "plot", family: "plots",
+        usage: "plot(x, y) → Figure\nplot(x, y, options) → Figure",
+        summary: "a line plot of y against x; y may be an array of series",
+        details: "x: array of numbers. y: array of numbers, or an array of such arrays (one \
+                  series each). options: #{ title, x_label, y_label, legend, log_x, log_y, \
+                  markers, width, height } — legend is an array of series names (or false); \
+                  markers: true draws points instead of lines.",
+        example: "let t = linear_grid(0, 5, 101);\nlet y = t.map(|v| exp(-v));\nplot(t, y, #{ title: \"decay\", x_label: \"time (s)\" })" },
+    Doc { name: "add", family: "plots", usage: "fig.add(x, y)\nfig.add(x, y, options)",
+        summary: "adds a series to a figure's first panel",
+        details: "options: #{ label, dashed, markers }.",
+        example: "let fig = plot([0, 1], [0, 1]);\nfig.add([0, 1], [1, 0], #{ label: \"falling\" });\nfig" },
+    Doc { name: "save", family: "plots", usage: "fig.save(path)",
+        summary: "writes a figure as an SVG file (inside the analysis folder)",
+        details: "path: relative to the analysis file; the folder must exist.",
+        example: "plot([0, 1], [0, 1]).save(\"line.svg\");" },
+];
+
+fn opt_bool(m: &Map, key: &str, fname: &str) -> Rr<Option<bool>> {
+    match m.get(key) {
+        None => Ok(None),
+        Some(v) => v.as_bool().map(Some).map_err(|_| {
+            fail(format!(
+                "{fname}: option {key} must be true or false, found {}",
+                type_name(v)
+            ))
+        }),
+    }
+}
+
+fn opt_string(m: &Map, key: &str, fname: &str) -> Rr<Option<String>> {
+    m.get(key)
+        .map(|v| to_str(v, fname, &format!("option {key}")))
+        .transpose()
+}
+
+fn opt_size(m: &Map, key: &str, fname: &str) -> Rr<Option<u32>> {
+    match m.get(key) {
+        None => Ok(None),
+        Some(v) => {
+            let x = crate::script::convert::to_count(v, fname, &format!("option {key}"))?;
+            Ok(Some(x.min(u32::MAX as usize) as u32))
+        }
+    }
+}
+
+const KNOWN: &[&str] = &[
+    "title", "x_label", "y_label", "legend", "log_x", "log_y", "markers", "width", "height",
+    "label", "dashed",
+];
+
+/// Reads the plot options map, refusing unknown keys (a typo would otherwise be silent).
+pub fn options(m: &Map, fname: &str) -> Rr<PlotOptions> {
+    for k in m.keys() {
+        if !KNOWN.contains(&k.as_str()) {
+            return Err(fail(format!(
+                "{fname}: unknown option '{k}' (known: {})",
+                KNOWN.join(", ")
+            )));
+        }
+    }
+    let legend = match m.get("legend") {
+        Some(v) if v.is_array() => Some(true),
+        _ => opt_bool(m, "legend", fname)?,
+    };
+    Ok(PlotOptions {
+        title: opt_string(m, "title", fname)?,
+        x_label: opt_string(m, "x_label", fname)?,
+        y_label: opt_string(m, "y_label", fname)?,
+        legend,
+        log_x: opt_bool(m, "log_x", fname)?,
+        log_y: opt_bool(m, "log_y", fname)?,
+        width: opt_size(m, "width", fname)?,
+        height: opt_size(m, "height", fname)?,
+    })
+}
+
+fn series_list(y: &Dynamic, fname: &str) -> Rr<Vec<Vec<f64>>> {
+    if let Some(a) = y.read_lock::<Array>() {
+        if a.first().is_some_and(|v| v.is_array()) {
+            return a
+                .iter()
+                .enumerate()
+                .map(|(k, s)| to_f64_vec(s, fname, &format!("y[{k}]")))
+                .collect();
+        }
+    }
+    Ok(vec![to_f64_vec(y, fname, "y")?])
+}
+
+fn labels(m: Option<&Map>, fname: &str) -> Rr<Vec<String>> {
+    let Some(v) = m.and_then(|m| m.get("legend")) else {
+        return Ok(Vec::new());
+    };
+    let Some(a) = v.read_lock::<Array>() else {
+        return Ok(Vec::new());
+    };
+    a.iter()
+        .enumerate()
+        .map(|(k, s)| to_str(s, fname, &format!("legend[{k}]")))
+        .collect()
+}
+
+fn make_plot(x: &Dynamic, y: &Dynamic, opts: Option<&Map>) -> Rr<Figure> {
+    let f = "plot";
+    let x = to_f64_vec(x, f, "x")?;
+    let ys = series_list(y, f)?;
+    for (k, s) in ys.iter().enumerate() {
+        if s.len() != x.len() {
+            return Err(fail(format!(
+                "plot: series {k} has {} values but x has {}; they must match",
+                s.len(),
+                x.len()
+            )));
+        }
+    }
+    let names = labels(opts, f)?;
+    let o = match opts {
+        Some(m) => options(m, f)?,
+        None => PlotOptions::default(),
+    };
+    let markers = match opts {
+        Some(m) => opt_bool(m, "markers", f)?.unwrap_or(false),
+        None => false,
+    };
+    let ys: Vec<(Vec<f64>, Option<String>)> = ys
+        .into_iter()
+        .enumerate()
+        .map(|(k, s)| (s, names.get(k).cloned()))
+        .collect();
+    let mut fig = PlotFigure::line(x, ys, &o);
+    if markers {
+        for p in &mut fig.panels {
+            for s in &mut p.series {
+                s.style = crate::plot::SeriesStyle::Markers(MarkerShape::Dot);
+            }
+        }
+    }
+    Ok(Figure(fig))
+}
+
+fn add_series(fig: &mut Figure, x: &Dynamic, y: &Dynamic, opts: Option<&Map>) -> Rr<()> {
+    let f = "add";
+    let x = to_f64_vec(x, f, "x")?;
+    let y = to_f64_vec(y, f, "y")?;
+    if x.len() != y.len() {
+        return Err(fail(format!(
+            "add: y has {} values but x has {}",
+            y.len(),
+            x.len()
+        )));
+    }
+    let (label, dashed, markers) = match opts {
+        Some(m) => (
+            opt_string(m, "label", f)?,
+            opt_bool(m, "dashed", f)?.unwrap_or(false),
+            opt_bool(m, "markers", f)?.unwrap_or(false),
+        ),
+        None => (None, false, false),
+    };
+    let mut s = if markers {
+        Series::markers(x, y, label.clone(), MarkerShape::Dot)
+    } else {
+        Series::line(x, y, label.clone())
+    };
+    if dashed {
+        s = s.with_dashes();
+    }
+    let Some(panel) = fig.0.panels.first_mut() else {
+        return Err(fail("add: the figure has no panel to add to"));
+    };
+    if label.is_some() {
+        panel.legend = true;
+    }
+    panel.series.push(s);
+    Ok(())
+}
+
+/// Renders a figure to SVG, with the error in script terms.
+pub fn svg(fig: &Figure) -> Rr<String> {
+    fig.0.to_svg().map_err(|e| fail(format!("figure: {e}")))
+}
+
+/// Registers the figure built-ins.
+pub fn register(engine: &mut Engine) {
+    engine.register_type_with_name::<Figure>("Figure");
+    engine.register_fn("plot", |x: Dynamic, y: Dynamic| make_plot(&x, &y, None));
+    engine.register_fn("plot", |x: Dynamic, y: Dynamic, o: Map| {
+        make_plot(&x, &y, Some(&o))
+    });
+    engine.register_fn("add", |fig: &mut Figure, x: Dynamic, y: Dynamic| {
+        add_series(fig, &x, &y, None)
+    });
+    engine.register_fn("add", |fig: &mut Figure, x: Dynamic, y: Dynamic, o: Map| {
+        add_series(fig, &x, &y, Some(&o))
+    });
+    engine.register_fn(
+        "save",
+        |ctx: NativeCallContext, fig: &mut Figure, path: Dynamic| -> Rr<()> {
+            let path = to_str(&path, "save", "path")?;
+            let Some(st) = state::of(&ctx) else {
+                return Err(fail("save: no session"));
+            };
+            let real = st
+                .sandbox
+                .write_path(&path)
+                .map_err(|m| fail(format!("save: {m}")))?;
+            let text = svg(fig)?;
+            crate::sandbox::write_atomic(&real, text.as_bytes())
+                .map_err(|e| fail(format!("save: cannot write {path}: {e}")))
+        },
+    );
+    engine.register_fn("to_string", |fig: &mut Figure| describe(fig));
+}
+
+/// One line describing a figure (for print and the terminal transcript).
+pub fn describe(fig: &Figure) -> String {
+    let series: usize = fig.0.panels.iter().map(|p| p.series.len()).sum();
+    format!(
+        "figure{} · {} panel{} · {} series",
+        fig.0
+            .title
+            .as_ref()
+            .map(|t| format!(" “{t}”"))
+            .unwrap_or_default(),
+        fig.0.panels.len(),
+        if fig.0.panels.len() == 1 { "" } else { "s" },
+        series
+    )
+}

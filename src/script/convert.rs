@@ -1,0 +1,223 @@
+//! Conversions between rhai values and numeric-layer values, with errors that name the
+//! argument and what was found.
+//!
+//! Engineers mix ints and floats freely and write matrices as nested arrays, so every
+//! built-in takes its numeric arguments as `Dynamic` and converts them here: a number may
+//! be an int or a float; a matrix may be a `Matrix`, an array of arrays of numbers, or a
+//! single number (a 1×1 matrix).
+
+use super::types::{Complex, ComplexMatrix, Matrix};
+use crate::numeric::NumError;
+use nalgebra::DMatrix;
+use rhai::{Array, Dynamic, EvalAltResult, Position, FLOAT, INT};
+
+/// Result type of built-ins.
+pub type Rr<T> = Result<T, Box<EvalAltResult>>;
+
+/// A runtime error with a message (the engine fills in the call position).
+pub fn fail(msg: impl Into<String>) -> Box<EvalAltResult> {
+    Box::new(EvalAltResult::ErrorRuntime(
+        Dynamic::from(msg.into()),
+        Position::NONE,
+    ))
+}
+
+/// Maps a numeric error to a runtime error prefixed with the built-in's name.
+pub fn num(name: &str) -> impl Fn(NumError) -> Box<EvalAltResult> + '_ {
+    move |e| fail(format!("{name}: {e}"))
+}
+
+/// The user-facing name of a value's type.
+pub fn type_name(v: &Dynamic) -> String {
+    if v.is::<Matrix>() {
+        "Matrix".into()
+    } else if v.is::<Complex>() {
+        "Complex".into()
+    } else if v.is::<ComplexMatrix>() {
+        "ComplexMatrix".into()
+    } else if v.is_unit() {
+        "nothing (unit)".into()
+    } else {
+        let t = v.type_name();
+        match t {
+            "i64" => "int".into(),
+            "f64" => "float".into(),
+            "string" | "ImmutableString" => "string".into(),
+            "array" => "array".into(),
+            "map" => "map".into(),
+            other => other.rsplit("::").next().unwrap_or(other).to_string(),
+        }
+    }
+}
+
+/// A number (int or float).
+pub fn to_f64(v: &Dynamic, fname: &str, arg: &str) -> Rr<f64> {
+    if let Some(x) = v.clone().try_cast::<FLOAT>() {
+        Ok(x)
+    } else if let Some(i) = v.clone().try_cast::<INT>() {
+        Ok(i as f64)
+    } else {
+        Err(fail(format!(
+            "{fname}: {arg} must be a number, found {}",
+            type_name(v)
+        )))
+    }
+}
+
+/// A finite number.
+pub fn to_finite(v: &Dynamic, fname: &str, arg: &str) -> Rr<f64> {
+    let x = to_f64(v, fname, arg)?;
+    if !x.is_finite() {
+        return Err(fail(format!(
+            "{fname}: {arg} is {x}, expected a finite number"
+        )));
+    }
+    Ok(x)
+}
+
+/// A non-negative whole number (an int, or a float with an integral value).
+pub fn to_count(v: &Dynamic, fname: &str, arg: &str) -> Rr<usize> {
+    let x = to_f64(v, fname, arg)?;
+    if !(x.is_finite() && x >= 0.0 && x.fract() == 0.0 && x <= 1e15) {
+        return Err(fail(format!(
+            "{fname}: {arg} must be a whole number ≥ 0, found {x}"
+        )));
+    }
+    Ok(x as usize)
+}
+
+/// A list of numbers from an array (or a row/column `Matrix`).
+pub fn to_f64_vec(v: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<f64>> {
+    if let Some(m) = v.read_lock::<Matrix>() {
+        if m.0.nrows() == 1 || m.0.ncols() == 1 {
+            return Ok(m.0.iter().copied().collect());
+        }
+        return Err(fail(format!(
+            "{fname}: {arg} must be a list of numbers, found a {}×{} matrix",
+            m.0.nrows(),
+            m.0.ncols()
+        )));
+    }
+    let Some(a) = v.read_lock::<Array>() else {
+        return Err(fail(format!(
+            "{fname}: {arg} must be an array of numbers, found {}",
+            type_name(v)
+        )));
+    };
+    a.iter()
+        .enumerate()
+        .map(|(k, x)| to_f64(x, fname, &format!("{arg}[{k}]")))
+        .collect()
+}
+
+/// A matrix: a `Matrix`, an array of arrays of numbers (rows), or a single number.
+pub fn to_matrix(v: &Dynamic, fname: &str, arg: &str) -> Rr<DMatrix<f64>> {
+    if let Some(m) = v.read_lock::<Matrix>() {
+        return Ok(m.0.clone());
+    }
+    if let Some(x) = v.clone().try_cast::<FLOAT>() {
+        return Ok(DMatrix::from_element(1, 1, x));
+    }
+    if let Some(i) = v.clone().try_cast::<INT>() {
+        return Ok(DMatrix::from_element(1, 1, i as f64));
+    }
+    if let Some(a) = v.read_lock::<Array>() {
+        return rows_to_matrix(&a, fname, arg);
+    }
+    Err(fail(format!(
+        "{fname}: {arg} must be a Matrix or an array of rows, found {}",
+        type_name(v)
+    )))
+}
+
+/// A matrix from an array of rows, each an array of numbers of equal length.
+pub fn rows_to_matrix(a: &Array, fname: &str, arg: &str) -> Rr<DMatrix<f64>> {
+    if a.is_empty() {
+        return Ok(DMatrix::zeros(0, 0));
+    }
+    let mut rows: Vec<Vec<f64>> = Vec::with_capacity(a.len());
+    for (i, r) in a.iter().enumerate() {
+        let Some(ra) = r.read_lock::<Array>() else {
+            if r.is::<INT>() || r.is::<FLOAT>() {
+                return Err(fail(format!(
+                    "{fname}: {arg} must be an array of rows (an array of arrays), found an \
+                     array of numbers\nhint: write [[1, 2, 3]] for a row, or use row([...]) or \
+                     column([...])"
+                )));
+            }
+            return Err(fail(format!(
+                "{fname}: {arg}[{i}] must be a row (an array of numbers), found {}",
+                type_name(r)
+            )));
+        };
+        let row: Vec<f64> = ra
+            .iter()
+            .enumerate()
+            .map(|(j, x)| to_f64(x, fname, &format!("{arg}[{i}][{j}]")))
+            .collect::<Rr<_>>()?;
+        if let Some(first) = rows.first() {
+            if first.len() != row.len() {
+                return Err(fail(format!(
+                    "{fname}: {arg}: row {i} has {} entries, expected {} like row 0",
+                    row.len(),
+                    first.len()
+                )));
+            }
+        }
+        rows.push(row);
+    }
+    let (r, c) = (rows.len(), rows[0].len());
+    Ok(DMatrix::from_fn(r, c, |i, j| rows[i][j]))
+}
+
+/// A complex number from a `Complex` or a real number.
+pub fn to_complex(v: &Dynamic, fname: &str, arg: &str) -> Rr<nalgebra::Complex<f64>> {
+    if let Some(z) = v.read_lock::<Complex>() {
+        return Ok(z.0);
+    }
+    to_f64(v, fname, arg)
+        .map(|x| nalgebra::Complex::new(x, 0.0))
+        .map_err(|_| {
+            fail(format!(
+                "{fname}: {arg} must be a number, found {}",
+                type_name(v)
+            ))
+        })
+}
+
+/// A list of complex numbers from an array of `Complex` or reals.
+pub fn to_complex_vec(v: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<nalgebra::Complex<f64>>> {
+    let Some(a) = v.read_lock::<Array>() else {
+        return Err(fail(format!(
+            "{fname}: {arg} must be an array, found {}",
+            type_name(v)
+        )));
+    };
+    a.iter()
+        .enumerate()
+        .map(|(k, x)| to_complex(x, fname, &format!("{arg}[{k}]")))
+        .collect()
+}
+
+/// Wraps a matrix for the script.
+pub fn matrix_value(m: DMatrix<f64>) -> Dynamic {
+    Dynamic::from(Matrix(m))
+}
+
+/// An array of `Complex` values.
+pub fn complex_array(v: &[nalgebra::Complex<f64>]) -> Array {
+    v.iter().map(|z| Dynamic::from(Complex(*z))).collect()
+}
+
+/// An array of floats.
+pub fn float_array(v: &[f64]) -> Array {
+    v.iter().map(|&x| Dynamic::from_float(x)).collect()
+}
+
+/// Reads a string argument.
+pub fn to_str(v: &Dynamic, fname: &str, arg: &str) -> Rr<String> {
+    v.clone()
+        .into_immutable_string()
+        .map(|s| s.to_string())
+        .map_err(|t| fail(format!("{fname}: {arg} must be a string, found {t}")))
+}

@@ -1,0 +1,98 @@
+//! The help text of every built-in, in one registry: it drives `statebook help`, the
+//! REPL's completion and the reference listing. Each binding file declares its entries
+//! beside its registrations (`DOCS`), so the documentation lives with the code.
+
+/// One built-in's documentation.
+#[derive(Debug, Clone, Copy)]
+pub struct Doc {
+    /// The name scripts call.
+    pub name: &'static str,
+    /// The family it is listed under by `help`.
+    pub family: &'static str,
+    /// Call forms, one per line (e.g. `solve(A, B) → Matrix`).
+    pub usage: &'static str,
+    /// One-line summary (shown by completion and the family listing).
+    pub summary: &'static str,
+    /// Arguments with units and further detail (may be empty).
+    pub details: &'static str,
+    /// A short example in the statebook language.
+    pub example: &'static str,
+}
+
+/// The order in which families are listed.
+pub const FAMILIES: &[&str] = &[
+    "numbers",
+    "matrices",
+    "linear algebra",
+    "models",
+    "transforms",
+    "equivalence",
+    "time domain",
+    "frequency domain",
+    "design",
+    "plots",
+    "output and files",
+    "library",
+];
+
+/// Every documented built-in (the binding files' `DOCS`, plus the stdlib's).
+pub fn all() -> Vec<Doc> {
+    let mut v: Vec<Doc> = Vec::new();
+    for part in super::builtins::DOC_TABLES {
+        v.extend_from_slice(part);
+    }
+    v.extend(crate::script::stdlib::docs());
+    v
+}
+
+/// The documentation of one name, if any.
+pub fn find(name: &str) -> Option<Doc> {
+    all().into_iter().find(|d| d.name == name)
+}
+
+/// The full help page of one built-in.
+pub fn page(d: &Doc) -> String {
+    let mut s = format!("{} — {}\n\n", d.name, d.summary);
+    for line in d.usage.lines() {
+        s.push_str("  ");
+        s.push_str(line.trim());
+        s.push('\n');
+    }
+    if !d.details.is_empty() {
+        s.push('\n');
+        for line in d.details.lines() {
+            s.push_str("  ");
+            s.push_str(line.trim_end());
+            s.push('\n');
+        }
+    }
+    if !d.example.is_empty() {
+        s.push_str("\nexample:\n");
+        for line in d.example.lines() {
+            s.push_str("  ");
+            s.push_str(line);
+            s.push('\n');
+        }
+    }
+    s.push_str(&format!("\nfamily: {}", d.family));
+    s
+}
+
+/// The listing of all built-ins by family.
+pub fn overview() -> String {
+    let docs = all();
+    let mut s = String::from("statebook built-ins by family (`help NAME` for one of them)\n");
+    for fam in FAMILIES {
+        let mut in_family: Vec<&Doc> = docs.iter().filter(|d| d.family == *fam).collect();
+        if in_family.is_empty() {
+            continue;
+        }
+        in_family.sort_by_key(|d| d.name);
+        s.push_str(&format!("\n{fam}\n"));
+        let width = in_family.iter().map(|d| d.name.len()).max().unwrap_or(0);
+        for d in in_family {
+            s.push_str(&format!("  {:width$}  {}\n", d.name, d.summary));
+        }
+    }
+    s
+}

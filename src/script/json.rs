@@ -1,0 +1,94 @@
+//! `to_json`: the JSON encoding of script values, shared by `to_json`, records and the
+//! results file.
+//!
+//! `Matrix` → array of rows; `Complex` → `{"re": …, "im": …}`; `ComplexMatrix` → rows of
+//! such objects; maps → objects (keys in sorted order, as rhai keeps them); arrays →
+//! arrays; `()` → `null`. JSON has no infinities or NaN, so those floats are written as
+//! the strings `"inf"`, `"-inf"` and `"nan"`. Model types encode themselves through
+//! [`EXTRA`].
+
+use super::types::{Complex, ComplexMatrix, Matrix};
+use rhai::{Array, Dynamic, Map, FLOAT, INT};
+use serde_json::{json, Value};
+
+/// Extension point for types defined elsewhere (models, responses …).
+pub type Encoder = fn(&Dynamic) -> Option<Value>;
+
+/// Encoders of types defined outside this file.
+pub const EXTRA: &[Encoder] = &[crate::script::builtins::json_extra];
+
+/// A float as JSON (non-finite values as strings).
+pub fn float(x: f64) -> Value {
+    if x.is_finite() {
+        json!(x)
+    } else if x.is_nan() {
+        json!("nan")
+    } else if x > 0.0 {
+        json!("inf")
+    } else {
+        json!("-inf")
+    }
+}
+
+/// A real matrix as an array of rows.
+pub fn matrix(m: &nalgebra::DMatrix<f64>) -> Value {
+    Value::Array(
+        (0..m.nrows())
+            .map(|i| Value::Array((0..m.ncols()).map(|j| float(m[(i, j)])).collect()))
+            .collect(),
+    )
+}
+
+/// A complex number as `{"re", "im"}`.
+pub fn complex(z: nalgebra::Complex<f64>) -> Value {
+    json!({"re": float(z.re), "im": float(z.im)})
+}
+
+/// Encodes any script value.
+pub fn encode(v: &Dynamic) -> Value {
+    if v.is_unit() {
+        return Value::Null;
+    }
+    if let Some(m) = v.read_lock::<Matrix>() {
+        return matrix(&m.0);
+    }
+    if let Some(z) = v.read_lock::<Complex>() {
+        return complex(z.0);
+    }
+    if let Some(m) = v.read_lock::<ComplexMatrix>() {
+        let m = &m.0;
+        return Value::Array(
+            (0..m.nrows())
+                .map(|i| Value::Array((0..m.ncols()).map(|j| complex(m[(i, j)])).collect()))
+                .collect(),
+        );
+    }
+    if let Some(x) = v.clone().try_cast::<FLOAT>() {
+        return float(x);
+    }
+    if let Some(i) = v.clone().try_cast::<INT>() {
+        return json!(i);
+    }
+    if let Some(b) = v.clone().try_cast::<bool>() {
+        return json!(b);
+    }
+    if v.is_string() {
+        return json!(v.to_string());
+    }
+    if let Some(a) = v.read_lock::<Array>() {
+        return Value::Array(a.iter().map(encode).collect());
+    }
+    if let Some(m) = v.read_lock::<Map>() {
+        let mut obj = serde_json::Map::new();
+        for (k, x) in m.iter() {
+            obj.insert(k.to_string(), encode(x));
+        }
+        return Value::Object(obj);
+    }
+    for f in EXTRA {
+        if let Some(j) = f(v) {
+            return j;
+        }
+    }
+    json!(v.to_string())
+}

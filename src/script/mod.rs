@@ -1,0 +1,12 @@
+//! The rhai binding layer: value types, conversions, the built-ins and the engine.
+//! Thin wrappers: convert, call `numeric/`, convert back.
+
+pub mod builtins;
+pub mod convert;
+pub mod docs;
+pub mod engine;
+pub mod json;
+pub mod show;
+pub mod state;
+pub mod stdlib;
+pub mod types;

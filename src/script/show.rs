@@ -1,0 +1,114 @@
+//! Display of any script value, for `print`, `show`, string interpolation and the value
+//! of a cell's last expression. Numeric values are formatted by [`crate::display`].
+
+use super::types::{Complex, ComplexMatrix, Matrix};
+use crate::display::{self, Style};
+use rhai::{Array, Dynamic, Map, FLOAT, INT};
+
+/// Extension point: model types and others register their display here.
+pub type Displayer = fn(&Dynamic, Style) -> Option<String>;
+
+/// Displayers of types defined outside this file (models, responses, figures …).
+pub const EXTRA: &[Displayer] = &[crate::script::builtins::display_extra];
+
+/// Formats a value for the user.
+pub fn format(v: &Dynamic, style: Style) -> String {
+    if let Some(m) = v.read_lock::<Matrix>() {
+        return display::real_matrix(&m.0, style);
+    }
+    if let Some(z) = v.read_lock::<Complex>() {
+        return display::complex(z.0.re, z.0.im, style);
+    }
+    if let Some(m) = v.read_lock::<ComplexMatrix>() {
+        return display::complex_matrix(&m.0, style);
+    }
+    if let Some(x) = v.clone().try_cast::<FLOAT>() {
+        return display::real(x, style);
+    }
+    if let Some(i) = v.clone().try_cast::<INT>() {
+        return i.to_string();
+    }
+    if let Some(a) = v.read_lock::<Array>() {
+        return format_array(&a, style);
+    }
+    if let Some(m) = v.read_lock::<Map>() {
+        return format_map(&m, style);
+    }
+    for f in EXTRA {
+        if let Some(s) = f(v, style) {
+            return s;
+        }
+    }
+    if v.is_unit() {
+        return "()".into();
+    }
+    v.to_string()
+}
+
+/// Formats a value inside a list or map (single-line when it fits).
+fn inline(v: &Dynamic, style: Style) -> String {
+    if v.is_string() {
+        return format!("{:?}", v.to_string());
+    }
+    format(v, style)
+}
+
+fn format_array(a: &Array, style: Style) -> String {
+    if a.iter().all(|x| x.is::<Complex>()) && !a.is_empty() {
+        let zs: Vec<nalgebra::Complex<f64>> = a
+            .iter()
+            .filter_map(|x| x.read_lock::<Complex>().map(|z| z.0))
+            .collect();
+        return display::complex_list(&zs, style);
+    }
+    let parts: Vec<String> = a.iter().map(|x| inline(x, style)).collect();
+    let one = format!("[{}]", parts.join(", "));
+    if !one.contains('\n') && one.chars().count() <= 78 {
+        return one;
+    }
+    let mut s = String::from("[\n");
+    for p in parts {
+        s.push_str(&indent(&p));
+        s.push_str(",\n");
+    }
+    s.push(']');
+    s
+}
+
+fn format_map(m: &Map, style: Style) -> String {
+    let parts: Vec<(String, String)> = m
+        .iter()
+        .map(|(k, v)| (k.to_string(), inline(v, style)))
+        .collect();
+    let one = format!(
+        "#{{ {} }}",
+        parts
+            .iter()
+            .map(|(k, v)| format!("{k}: {v}"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    );
+    if parts.is_empty() {
+        return "#{}".into();
+    }
+    if !one.contains('\n') && one.chars().count() <= 78 {
+        return one;
+    }
+    let mut s = String::from("#{\n");
+    for (k, v) in parts {
+        if v.contains('\n') {
+            s.push_str(&format!("  {k}:\n{}\n", indent(&indent(&v))));
+        } else {
+            s.push_str(&format!("  {k}: {v}\n"));
+        }
+    }
+    s.push('}');
+    s
+}
+
+fn indent(s: &str) -> String {
+    s.lines()
+        .map(|l| format!("  {l}"))
+        .collect::<Vec<_>>()
+        .join("\n")
+}

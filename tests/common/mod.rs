@@ -1,0 +1,2 @@
+//! Shared helpers for integration tests (`mod common;` in a test file).
+pub mod fixtures;
