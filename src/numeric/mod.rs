@@ -5,6 +5,7 @@
 //! comment.
 
 pub mod check;
+pub mod design;
 pub mod error;
 pub mod freq;
 pub mod linalg;

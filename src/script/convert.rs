@@ -31,6 +31,12 @@ pub fn num(name: &str) -> impl Fn(NumError) -> Box<EvalAltResult> + '_ {
 pub fn type_name(v: &Dynamic) -> String {
     if v.is::<Matrix>() {
         "Matrix".into()
+    } else if v.is::<super::types::System>() {
+        "System".into()
+    } else if v.is::<super::types::TransferFunction>() {
+        "TransferFunction".into()
+    } else if v.is::<super::types::Figure>() {
+        "Figure".into()
     } else if v.is::<Complex>() {
         "Complex".into()
     } else if v.is::<ComplexMatrix>() {
@@ -220,4 +226,27 @@ pub fn to_str(v: &Dynamic, fname: &str, arg: &str) -> Rr<String> {
         .into_immutable_string()
         .map(|s| s.to_string())
         .map_err(|t| fail(format!("{fname}: {arg} must be a string, found {t}")))
+}
+
+/// A model: a `System`, or a `TransferFunction` (realized minimally in state space).
+pub fn to_system(
+    v: &Dynamic,
+    fname: &str,
+    arg: &str,
+) -> Rr<crate::numeric::lti::system::StateSpace> {
+    if let Some(s) = v.read_lock::<super::types::System>() {
+        return Ok(s.0.clone());
+    }
+    if let Some(t) = v.read_lock::<super::types::TransferFunction>() {
+        return crate::numeric::lti::realize::from_transfer_function(&t.0).map_err(num(fname));
+    }
+    Err(fail(format!(
+        "{fname}: {arg} must be a System or a TransferFunction, found {}",
+        type_name(v)
+    )))
+}
+
+/// Wraps a model for the script.
+pub fn system_value(s: crate::numeric::lti::system::StateSpace) -> Dynamic {
+    Dynamic::from(super::types::System(s))
 }

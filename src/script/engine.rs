@@ -45,6 +45,7 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::matrix::register(&mut e);
     builtins::complex::register(&mut e);
     builtins::linalg::register(&mut e);
+    builtins::lti::register(&mut e);
     builtins::output::register(&mut e, state);
     builtins::plot::register(&mut e);
     register_display(&mut e, state);

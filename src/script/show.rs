@@ -61,10 +61,27 @@ fn format_array(a: &Array, style: Style) -> String {
             .collect();
         return display::complex_list(&zs, style);
     }
+    if let Some(t) = table_of_maps(a, style) {
+        return t;
+    }
     let parts: Vec<String> = a.iter().map(|x| inline(x, style)).collect();
     let one = format!("[{}]", parts.join(", "));
     if !one.contains('\n') && one.chars().count() <= 78 {
         return one;
+    }
+    if parts.iter().any(|p| p.contains('\n')) {
+        // Multi-line items (matrices, models): one numbered block each.
+        let mut s = format!("array of {}", parts.len());
+        for (k, p) in parts.iter().enumerate() {
+            let label = format!("[{k}] ");
+            let pad = " ".repeat(label.len());
+            for (i, line) in p.lines().enumerate() {
+                s.push_str("\n  ");
+                s.push_str(if i == 0 { &label } else { &pad });
+                s.push_str(line);
+            }
+        }
+        return s;
     }
     let mut s = String::from("[\n");
     for p in parts {
@@ -111,4 +128,31 @@ fn indent(s: &str) -> String {
         .map(|l| format!("  {l}"))
         .collect::<Vec<_>>()
         .join("\n")
+}
+
+/// An array of maps that all have the same keys displays as a table (e.g. `modes`).
+fn table_of_maps(a: &Array, style: Style) -> Option<String> {
+    let first = a.first()?.read_lock::<Map>()?.clone();
+    if first.is_empty() {
+        return None;
+    }
+    let keys: Vec<String> = first.keys().map(|k| k.to_string()).collect();
+    let mut rows = Vec::with_capacity(a.len());
+    for item in a {
+        let m = item.read_lock::<Map>()?;
+        if m.len() != keys.len() {
+            return None;
+        }
+        let mut row = Vec::with_capacity(keys.len());
+        for k in &keys {
+            let v = m.get(k.as_str())?;
+            let s = inline(v, style);
+            if s.contains('\n') {
+                return None;
+            }
+            row.push(s);
+        }
+        rows.push(row);
+    }
+    Some(display::table(&keys, &rows))
 }

@@ -2,6 +2,11 @@
 //! transforms, structure and equivalence.
 
 pub mod balance;
+pub mod equivalence;
+pub mod modal;
+pub mod properties;
+pub mod realize;
+pub mod staircase;
 pub mod system;
 pub mod tf;
 pub mod transform;

@@ -4,6 +4,7 @@
 pub mod arith;
 pub mod complex;
 pub mod linalg;
+pub mod lti;
 pub mod matrix;
 pub mod output;
 pub mod plot;
@@ -24,15 +25,48 @@ pub const DOC_TABLES: &[&[Doc]] = &[
 ];
 
 /// Display of value types defined by the domain bindings (models, responses, figures).
-pub fn display_extra(v: &Dynamic, _style: Style) -> Option<String> {
-    if let Some(f) = v.read_lock::<crate::script::types::Figure>() {
+pub fn display_extra(v: &Dynamic, style: Style) -> Option<String> {
+    use crate::script::types::{Figure, System, TransferFunction};
+    if let Some(f) = v.read_lock::<Figure>() {
         return Some(plot::describe(&f));
+    }
+    if let Some(s) = v.read_lock::<System>() {
+        let s = &s.0;
+        return Some(crate::display::system(
+            &s.a,
+            &s.b,
+            &s.c,
+            &s.d,
+            s.dt,
+            [&s.names.inputs, &s.names.outputs, &s.names.states],
+            style,
+        ));
+    }
+    if let Some(t) = v.read_lock::<TransferFunction>() {
+        return Some(crate::display::transfer_function(
+            &t.0.num, &t.0.den, t.0.dt, style,
+        ));
     }
     None
 }
 
 /// JSON encoding of value types defined by the domain bindings.
-pub fn json_extra(_v: &Dynamic) -> Option<serde_json::Value> {
+pub fn json_extra(v: &Dynamic) -> Option<serde_json::Value> {
+    use crate::script::json::{float, matrix};
+    use crate::script::types::{System, TransferFunction};
+    if let Some(s) = v.read_lock::<System>() {
+        let s = &s.0;
+        return Some(serde_json::json!({
+            "A": matrix(&s.a), "B": matrix(&s.b), "C": matrix(&s.c), "D": matrix(&s.d),
+            "dt": float(s.dt),
+        }));
+    }
+    if let Some(t) = v.read_lock::<TransferFunction>() {
+        let list = |c: &[f64]| serde_json::Value::Array(c.iter().map(|&x| float(x)).collect());
+        return Some(serde_json::json!({
+            "num": list(&t.0.num), "den": list(&t.0.den), "dt": float(t.0.dt),
+        }));
+    }
     None
 }
 

@@ -1,0 +1,7 @@
+//! Feedback design: Riccati equations, pole assignment, LQ regulator and estimator,
+//! interconnection of models.
+
+pub mod interconnect;
+pub mod lq;
+pub mod poles;
+pub mod riccati;

@@ -1,0 +1,409 @@
+//! Deciding whether two models have the same input–output behaviour, and recovering the
+//! similarity transform between two minimal realizations of it.
+//!
+//! Two models are equivalent when their transfer functions agree. For rational functions
+//! of orders n₁ and n₂ that holds exactly when the Markov parameters `D, CB, CAB, …` agree
+//! up to index n₁ + n₂ (the difference is a realization of order ≤ n₁ + n₂, whose Markov
+//! parameters vanish beyond that only if all vanish — Cayley–Hamilton). The comparison is
+//! made on time-scaled parameters `C (αA)^k B α` with `α = 1/ρ`, ρ the largest pole
+//! magnitude of the two models, so that fast and slow models are judged alike; a
+//! frequency-response comparison on a grid covering every pole cross-checks the verdict.
+
+use super::staircase::minimal_realization;
+use super::system::StateSpace;
+use super::transform::{rcond, transform_state};
+use crate::numeric::freq::response::FrequencyEvaluator;
+use crate::numeric::linalg::eigen::eigenvalues;
+use crate::numeric::{NumError, NumResult};
+use nalgebra::DMatrix;
+
+/// Relative tolerance on the scaled Markov parameters.
+pub const MARKOV_TOLERANCE: f64 = 1e-8;
+/// Relative tolerance on the frequency responses.
+pub const FREQUENCY_TOLERANCE: f64 = 1e-6;
+
+/// The verdict of [`equivalence`].
+#[derive(Debug, Clone)]
+pub struct Equivalence {
+    /// Whether the two models have the same input–output behaviour.
+    pub equivalent: bool,
+    /// Why, in words: what was compared and what differs by how much.
+    pub reason: String,
+    /// Largest relative difference of the scaled Markov parameters (∞ when incomparable).
+    pub markov_error: f64,
+    /// Largest relative difference of the frequency responses on the grid.
+    pub frequency_error: f64,
+    /// `T` with `b = transform_state(a, T)`, when both are minimal of equal order.
+    pub transform: Option<DMatrix<f64>>,
+}
+
+fn incomparable(reason: String) -> Equivalence {
+    Equivalence {
+        equivalent: false,
+        reason,
+        markov_error: f64::INFINITY,
+        frequency_error: f64::INFINITY,
+        transform: None,
+    }
+}
+
+fn spectral_radius(a: &DMatrix<f64>) -> NumResult<f64> {
+    Ok(eigenvalues(a)?.iter().map(|z| z.norm()).fold(0.0, f64::max))
+}
+
+/// The scaled Markov parameters `D, α·CB, α²·CAB, …` (count matrices).
+fn scaled_markov(sys: &StateSpace, alpha: f64, count: usize) -> Vec<DMatrix<f64>> {
+    let mut out = vec![sys.d.clone()];
+    let a = &sys.a * alpha;
+    let mut akb = &sys.b * alpha;
+    for _ in 1..count {
+        out.push(&sys.c * &akb);
+        akb = &a * akb;
+    }
+    out
+}
+
+/// Frequencies covering every pole of both models: a log grid two decades past the
+/// extreme pole magnitudes, plus each pole's own frequency (capped at Nyquist when
+/// discrete).
+fn grid(a: &StateSpace, b: &StateSpace) -> NumResult<Vec<f64>> {
+    let mut mags: Vec<f64> = Vec::new();
+    for s in [a, b] {
+        for p in eigenvalues(&s.a)? {
+            let w = if s.is_discrete() {
+                (p.ln() / s.dt).norm()
+            } else {
+                p.norm()
+            };
+            if w.is_finite() && w > 0.0 {
+                mags.push(w);
+            }
+        }
+    }
+    let lo = mags.iter().cloned().fold(f64::INFINITY, f64::min);
+    let hi = mags.iter().cloned().fold(0.0, f64::max);
+    let (lo, hi) = if mags.is_empty() {
+        (0.1, 10.0)
+    } else {
+        (lo / 100.0, hi * 100.0)
+    };
+    let nyquist = if a.is_discrete() {
+        std::f64::consts::PI / a.dt
+    } else {
+        f64::INFINITY
+    };
+    let hi = hi.min(nyquist * 0.999);
+    let lo = lo.min(hi / 10.0);
+    let count = 160;
+    let mut w: Vec<f64> = (0..count)
+        .map(|k| lo * (hi / lo).powf(k as f64 / (count - 1) as f64))
+        .collect();
+    w.extend(mags.iter().filter(|&&m| m < nyquist).map(|m| m * 1.0001));
+    w.push(0.0);
+    w.sort_by(|x, y| x.partial_cmp(y).unwrap_or(std::cmp::Ordering::Equal));
+    Ok(w)
+}
+
+/// Decides whether `a` and `b` have the same input–output behaviour (see the module
+/// documentation) and, when both are minimal and of equal order, returns the `T` with
+/// `b = transform_state(a, T)`. Models with different input or output counts, time
+/// domains or sample times get a verdict (not equivalent), not an error.
+pub fn equivalence(a: &StateSpace, b: &StateSpace) -> NumResult<Equivalence> {
+    if a.inputs() != b.inputs() || a.outputs() != b.outputs() {
+        return Ok(incomparable(format!(
+            "not equivalent: the models have different signal counts ({} inputs × {} outputs \
+             against {} × {})",
+            a.inputs(),
+            a.outputs(),
+            b.inputs(),
+            b.outputs()
+        )));
+    }
+    if super::system::same_domain("equivalence", a, b).is_err() {
+        return Ok(incomparable(format!(
+            "not equivalent: the models live in different time domains ({} against {})",
+            a.domain_words(),
+            b.domain_words()
+        )));
+    }
+    let rho = spectral_radius(&a.a)?.max(spectral_radius(&b.a)?);
+    let alpha = if rho > 0.0 && !a.is_discrete() {
+        1.0 / rho
+    } else {
+        1.0
+    };
+    let alpha = if a.is_discrete() && rho > 1.0 {
+        1.0 / rho
+    } else {
+        alpha
+    };
+    let count = a.order() + b.order() + 1;
+    let ma = scaled_markov(a, alpha, count);
+    let mb = scaled_markov(b, alpha, count);
+    let scale = ma
+        .iter()
+        .chain(mb.iter())
+        .map(|m| m.norm())
+        .fold(0.0, f64::max);
+    let mut markov_error = 0.0f64;
+    let mut worst_k = 0;
+    for (k, (p, q)) in ma.iter().zip(mb.iter()).enumerate() {
+        let e = if scale > 0.0 {
+            (p - q).norm() / scale
+        } else {
+            0.0
+        };
+        if e > markov_error {
+            markov_error = e;
+            worst_k = k;
+        }
+    }
+    // Frequency cross-check.
+    let w = grid(a, b)?;
+    let ea = FrequencyEvaluator::new(a)?;
+    let eb = FrequencyEvaluator::new(b)?;
+    let mut ga = Vec::with_capacity(w.len());
+    let mut gb = Vec::with_capacity(w.len());
+    for &x in &w {
+        ga.push(ea.at_frequency(x));
+        gb.push(eb.at_frequency(x));
+    }
+    let gscale = ga
+        .iter()
+        .chain(gb.iter())
+        .map(|g| g.norm())
+        .filter(|v| v.is_finite())
+        .fold(0.0, f64::max);
+    let mut frequency_error = 0.0f64;
+    let mut worst_w = 0.0;
+    for ((x, p), q) in w.iter().zip(&ga).zip(&gb) {
+        let d = (p - q).norm();
+        if !d.is_finite() {
+            continue; // a pole exactly on the grid
+        }
+        let e = if gscale > 0.0 { d / gscale } else { 0.0 };
+        if e > frequency_error {
+            frequency_error = e;
+            worst_w = *x;
+        }
+    }
+    let equivalent = markov_error <= MARKOV_TOLERANCE && frequency_error <= FREQUENCY_TOLERANCE;
+    let what_k = match worst_k {
+        0 => "D".to_string(),
+        1 => "C·B".to_string(),
+        k => format!("C·A^{}·B", k - 1),
+    };
+    let mut reason = if equivalent {
+        format!(
+            "equivalent: the first {count} Markov parameters agree to {markov_error:.1e} \
+             (relative, time-scaled) and the frequency responses to {frequency_error:.1e} on \
+             {} frequencies from {:.3e} to {:.3e} rad/s",
+            w.len(),
+            w.get(1).copied().unwrap_or(0.0),
+            w.last().copied().unwrap_or(0.0)
+        )
+    } else if markov_error > MARKOV_TOLERANCE {
+        format!(
+            "not equivalent: Markov parameter {worst_k} ({what_k}) differs by {markov_error:.2e} \
+             relative (tolerance {MARKOV_TOLERANCE:.0e}); the frequency responses differ most \
+             at {worst_w:.4e} rad/s, by {frequency_error:.2e} relative"
+        )
+    } else {
+        format!(
+            "not equivalent: the frequency responses differ at {worst_w:.4e} rad/s by \
+             {frequency_error:.2e} relative (tolerance {FREQUENCY_TOLERANCE:.0e}), though the \
+             Markov parameters agree to {markov_error:.1e}"
+        )
+    };
+    let mut transform = None;
+    if equivalent {
+        let ra = minimal_realization(&a.a, &a.b, &a.c, &a.d, None)?.removed;
+        let rb = minimal_realization(&b.a, &b.b, &b.c, &b.d, None)?.removed;
+        if ra == 0 && rb == 0 && a.order() == b.order() {
+            match recover_transform(a, b) {
+                Ok(t) => transform = Some(t),
+                Err(e) => reason.push_str(&format!("; no transform recovered: {e}")),
+            }
+        } else if ra > 0 || rb > 0 {
+            reason.push_str(&format!(
+                "; no transform: {} (minimal_realization removes {} and {} states)",
+                "a similarity exists only between minimal realizations of equal order", ra, rb
+            ));
+        }
+    }
+    Ok(Equivalence {
+        equivalent,
+        reason,
+        markov_error,
+        frequency_error,
+        transform,
+    })
+}
+
+/// The `T` with `b = transform_state(a, T)` for two equivalent minimal models of equal
+/// order, or an error saying why none exists.
+pub fn find_transform(a: &StateSpace, b: &StateSpace) -> NumResult<DMatrix<f64>> {
+    let eq = equivalence(a, b)?;
+    if !eq.equivalent {
+        return Err(NumError::no_solution("find_transform", eq.reason));
+    }
+    if a.order() != b.order() {
+        return Err(NumError::no_solution(
+            "find_transform",
+            format!(
+                "the models behave alike but have different orders ({} and {}); a similarity \
+                 transform needs equal orders\nhint: compare minimal_realization of each",
+                a.order(),
+                b.order()
+            ),
+        ));
+    }
+    eq.transform
+        .ok_or_else(|| NumError::no_solution("find_transform", eq.reason))
+}
+
+/// Solves `A_a T = T A_b`, `T B_b = B_a`, `C_a T = C_b` for T: for minimal models the
+/// solution is unique. Small orders solve the Kronecker system by least squares; larger
+/// ones use `T = K_a K_b⁺` with time-scaled Krylov matrices `K = [B, αAB, …]`. Either way
+/// the result is verified by transforming `a` and comparing with `b`.
+fn recover_transform(a: &StateSpace, b: &StateSpace) -> NumResult<DMatrix<f64>> {
+    let n = a.order();
+    if n == 0 {
+        return Ok(DMatrix::zeros(0, 0));
+    }
+    let (m, p) = (a.inputs(), a.outputs());
+    let t = if n <= 14 {
+        let nn = n * n;
+        let rows = nn + n * m + p * n;
+        let mut k = DMatrix::<f64>::zeros(rows, nn);
+        let mut rhs = DMatrix::<f64>::zeros(rows, 1);
+        // vec(A_a T − T A_b) = (I ⊗ A_a − A_bᵀ ⊗ I) vec T; column-major vec, T[(i,j)] at j·n+i.
+        for j in 0..n {
+            for i in 0..n {
+                let row = j * n + i;
+                for l in 0..n {
+                    k[(row, j * n + l)] += a.a[(i, l)];
+                    k[(row, l * n + i)] -= b.a[(l, j)];
+                }
+            }
+        }
+        // T B_b = B_a.
+        for j in 0..m {
+            for i in 0..n {
+                let row = nn + j * n + i;
+                for l in 0..n {
+                    k[(row, l * n + i)] += b.b[(l, j)];
+                }
+                rhs[(row, 0)] = a.b[(i, j)];
+            }
+        }
+        // C_a T = C_b.
+        for j in 0..n {
+            for i in 0..p {
+                let row = nn + n * m + j * p + i;
+                for l in 0..n {
+                    k[(row, j * n + l)] += a.c[(i, l)];
+                }
+                rhs[(row, 0)] = b.c[(i, j)];
+            }
+        }
+        let svd = k.svd(true, true);
+        let x = svd
+            .solve(&rhs, 1e-13)
+            .map_err(|e| NumError::no_solution("find_transform", e.to_string()))?;
+        DMatrix::from_column_slice(n, n, x.as_slice())
+    } else {
+        let rho = spectral_radius(&a.a)?.max(1e-300);
+        let alpha = 1.0 / rho;
+        let krylov = |s: &StateSpace| {
+            let mut cols = Vec::new();
+            let mut v = s.b.clone();
+            for _ in 0..n {
+                cols.push(v.clone());
+                v = &s.a * v * alpha;
+            }
+            let mut kk = DMatrix::zeros(n, n * m);
+            for (q, c) in cols.iter().enumerate() {
+                kk.columns_mut(q * m, m).copy_from(c);
+            }
+            kk
+        };
+        let ka = krylov(a);
+        let kb = krylov(b);
+        let kb_norm = kb.norm();
+        let pinv = kb
+            .pseudo_inverse(1e-14 * kb_norm)
+            .map_err(|e| NumError::no_solution("find_transform", e.to_string()))?;
+        ka * pinv
+    };
+    let rc = rcond(&t);
+    if rc <= (n as f64) * f64::EPSILON {
+        return Err(NumError::Singular {
+            what: "the recovered transform".into(),
+            rcond: rc,
+        });
+    }
+    let (tb, _) = transform_state(a, &t)?;
+    let err = (&tb.a - &b.a).norm() / (1.0 + b.a.norm())
+        + (&tb.b - &b.b).norm() / (1.0 + b.b.norm())
+        + (&tb.c - &b.c).norm() / (1.0 + b.c.norm());
+    if err.is_nan() || err > 1e-6 {
+        return Err(NumError::no_solution(
+            "find_transform",
+            format!("the recovered T reproduces b only to {err:.1e} relative"),
+        ));
+    }
+    Ok(t)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::numeric::testing::Rng;
+
+    fn stable(rng: &mut Rng, n: usize, m: usize, p: usize) -> StateSpace {
+        let a = rng.matrix(n, n) - DMatrix::identity(n, n) * (n as f64).sqrt() * 1.5;
+        StateSpace::new(a, rng.matrix(n, m), rng.matrix(p, n), rng.matrix(p, m), 0.0).unwrap()
+    }
+
+    #[test]
+    fn transformed_model_is_equivalent_and_transform_recovered() {
+        let mut rng = Rng::new(21);
+        for &n in &[1usize, 2, 4, 8, 20] {
+            let a = stable(&mut rng, n, 2, 2);
+            let t = rng.matrix(n, n) + DMatrix::identity(n, n) * 2.5;
+            let (b, _) = transform_state(&a, &t).unwrap();
+            let eq = equivalence(&a, &b).unwrap();
+            assert!(eq.equivalent, "n = {n}: {}", eq.reason);
+            let got = eq.transform.expect("transform");
+            assert!(
+                (&got - &t).norm() <= 1e-6 * t.norm(),
+                "n = {n}: T not recovered"
+            );
+        }
+    }
+
+    #[test]
+    fn perturbed_model_is_not_equivalent() {
+        let mut rng = Rng::new(4);
+        let a = stable(&mut rng, 4, 1, 1);
+        let mut b = a.clone();
+        b.b[(0, 0)] += 1e-4;
+        let eq = equivalence(&a, &b).unwrap();
+        assert!(!eq.equivalent, "{}", eq.reason);
+        assert!(eq.reason.contains("Markov parameter"), "{}", eq.reason);
+        assert!(find_transform(&a, &b).is_err());
+    }
+
+    #[test]
+    fn different_shapes_and_domains_are_verdicts() {
+        let mut rng = Rng::new(9);
+        let a = stable(&mut rng, 3, 1, 1);
+        let b = stable(&mut rng, 3, 2, 1);
+        assert!(!equivalence(&a, &b).unwrap().equivalent);
+        let mut d = a.clone();
+        d.dt = 0.1;
+        let e = equivalence(&a, &d).unwrap();
+        assert!(!e.equivalent && e.reason.contains("time domains"));
+    }
+}

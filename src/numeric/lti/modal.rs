@@ -1,0 +1,489 @@
+//! The modal (real block-diagonal) realization and the real Jordan realization.
+//!
+//! Method: the ordered real Schur form `A = Q T Qᵀ` (standardised 2×2 blocks, Bai–Demmel
+//! reordering into the eigenvalue convention's order), then block diagonalisation by
+//! Sylvester equations between a leading cluster and the rest, merging a cluster with its
+//! neighbour whenever the decoupling solution `X` grows beyond a bound (Bavely & Stewart
+//! 1979, "An algorithm for computing reducing subspaces by block diagonalization", SIAM
+//! J. Numer. Anal. 16(2)). The transform stays as well conditioned as the spectrum allows:
+//! an ill-conditioned eigenvector matrix is never inverted. Each complex pair's block is
+//! finally scaled to `[[σ, ω], [−ω, σ]]` (ω > 0) and each block's columns normalised.
+
+use super::system::StateSpace;
+use super::transform::{condition_warning, rcond};
+use crate::numeric::linalg::schur::RealSchur;
+use crate::numeric::linalg::sylvester::solve_sylvester;
+use crate::numeric::{NumError, NumResult};
+use nalgebra::{Complex, DMatrix};
+
+/// Largest accepted ‖X‖_F (relative to 1) of one decoupling step before clusters merge.
+pub const DECOUPLING_BOUND: f64 = 1e5;
+
+/// Eigenvalues closer than this (relative to max(1, |λ|)) start in one cluster.
+pub const CLUSTER_TOLERANCE: f64 = 1e-9;
+
+/// A complex pair whose imaginary part is below this (relative to 1 + |λ|) is a split
+/// repeated real eigenvalue of a nearly defective matrix, not an oscillation.
+pub const NEARLY_DEFECTIVE: f64 = 1e-6;
+
+/// A modal (or Jordan) realization and its transform.
+#[derive(Debug, Clone)]
+pub struct Modal {
+    /// The new model (x = T z).
+    pub system: StateSpace,
+    /// The transform.
+    pub t: DMatrix<f64>,
+    /// cond₂(T).
+    pub condition: f64,
+    /// Sizes of the diagonal blocks in order.
+    pub blocks: Vec<usize>,
+    /// Numerical-health warnings (coupled clusters, ill-conditioning).
+    pub warnings: Vec<String>,
+}
+
+fn block_eigenvalue(t: &DMatrix<f64>, s: usize, size: usize) -> Complex<f64> {
+    if size == 1 {
+        Complex::new(t[(s, s)], 0.0)
+    } else {
+        let a = t[(s, s)];
+        let w = (t[(s, s + 1)] * t[(s + 1, s)]).abs().sqrt();
+        Complex::new(a, w)
+    }
+}
+
+fn key(z: &Complex<f64>) -> (f64, f64) {
+    (z.re, z.im.abs())
+}
+
+/// The ordered, block-diagonalised Schur form: (T, Y, block starts and sizes) with
+/// `A = (Q Y) T (Q Y)⁻¹`, T block diagonal.
+struct Decoupled {
+    t: DMatrix<f64>,
+    basis: DMatrix<f64>,
+    blocks: Vec<(usize, usize)>,
+    warnings: Vec<String>,
+}
+
+fn decouple(a: &DMatrix<f64>) -> NumResult<Decoupled> {
+    let n = a.nrows();
+    let mut schur = RealSchur::new(a)?;
+    // Sort the Schur blocks into the convention's order (ascending σ, then |ω|).
+    let mut targets: Vec<Complex<f64>> = schur
+        .blocks()
+        .iter()
+        .map(|&(s, k)| block_eigenvalue(&schur.t, s, k))
+        .collect();
+    targets.sort_by(|x, y| {
+        key(x)
+            .partial_cmp(&key(y))
+            .unwrap_or(std::cmp::Ordering::Equal)
+    });
+    let near = |z: Complex<f64>, w: &Complex<f64>| {
+        let zz = Complex::new(z.re, z.im.abs());
+        (zz - w).norm() <= 1e-7 * (1.0 + w.norm())
+    };
+    for k in 0..targets.len() {
+        let chosen = &targets[..=k];
+        schur.reorder(|z| chosen.iter().any(|w| near(z, w)))?;
+    }
+    let blocks = schur.blocks();
+    let mut t = schur.t.clone();
+    let mut basis = schur.q.clone();
+    let mut warnings = Vec::new();
+    // Group blocks into clusters, then decouple leading clusters from the rest.
+    let mut out_blocks = Vec::new();
+    let mut i = 0;
+    while i < blocks.len() {
+        let (s, k0) = blocks[i];
+        let mut j = i + 1; // cluster = blocks[i..j]
+        let lam = block_eigenvalue(&t, s, k0);
+        while j < blocks.len() {
+            let (sj, kj) = blocks[j];
+            let mu = block_eigenvalue(&t, sj, kj);
+            if (mu - lam).norm() <= CLUSTER_TOLERANCE * (1.0 + lam.norm()) {
+                j += 1;
+            } else {
+                break;
+            }
+        }
+        loop {
+            let e = if j < blocks.len() { blocks[j].0 } else { n };
+            if e == n {
+                break;
+            }
+            let t11 = t.view((s, s), (e - s, e - s)).into_owned();
+            let t22 = t.view((e, e), (n - e, n - e)).into_owned();
+            let t12 = t.view((s, e), (e - s, n - e)).into_owned();
+            let x = solve_sylvester(&t11, &(-&t22), &(-&t12));
+            match x {
+                Ok(x) if x.norm() <= DECOUPLING_BOUND => {
+                    t.view_mut((s, e), (e - s, n - e)).fill(0.0);
+                    let left = basis.columns(s, e - s).into_owned();
+                    let mut right = basis.columns_mut(e, n - e);
+                    right += left * x;
+                    break;
+                }
+                _ => {
+                    j += 1; // merge the next block into the cluster and retry
+                }
+            }
+        }
+        let e = if j < blocks.len() { blocks[j].0 } else { n };
+        out_blocks.push((s, e - s));
+        let tiny_pair = e - s == 2 && k0 == 2 && {
+            let z = block_eigenvalue(&t, s, 2);
+            z.im.abs() <= NEARLY_DEFECTIVE * (1.0 + z.norm())
+        };
+        if e - s > 2 || (e - s == 2 && k0 == 1) || tiny_pair {
+            let vals: Vec<String> = (i..j)
+                .map(|b| {
+                    let z = block_eigenvalue(&t, blocks[b].0, blocks[b].1);
+                    format!("{:.6}{:+.6}j", z.re, z.im)
+                })
+                .collect();
+            warnings.push(format!(
+                "eigenvalues {} are repeated or too close to separate safely; their {}×{} block \
+                 stays coupled (not diagonal)",
+                vals.join(", "),
+                e - s,
+                e - s
+            ));
+        }
+        i = j;
+    }
+    Ok(Decoupled {
+        t,
+        basis,
+        blocks: out_blocks,
+        warnings,
+    })
+}
+
+/// Scales each block: a complex pair to `[[σ, ω], [−ω, σ]]`, then every block's columns
+/// to unit average norm. Returns the scaled block-diagonal matrix and basis.
+fn scale_blocks(d: &mut Decoupled) {
+    for &(s, k) in &d.blocks {
+        if k == 2 {
+            let (b, c) = (d.t[(s, s + 1)], d.t[(s + 1, s)]);
+            if b * c < 0.0 {
+                let mag = (-c / b).sqrt();
+                let f = if b > 0.0 { mag } else { -mag };
+                // D = diag(1, f): D⁻¹ M D.
+                d.t[(s, s + 1)] *= f;
+                d.t[(s + 1, s)] /= f;
+                let mut col = d.basis.column_mut(s + 1);
+                col *= f;
+            }
+        }
+        let norm = d.basis.columns(s, k).norm() / (k as f64).sqrt();
+        if norm > 0.0 && norm.is_finite() {
+            let mut cols = d.basis.columns_mut(s, k);
+            cols /= norm;
+        }
+    }
+}
+
+fn assemble(sys: &StateSpace, d: Decoupled, what: &str) -> NumResult<Modal> {
+    let n = sys.order();
+    let rc = rcond(&d.basis);
+    if rc <= (n.max(1) as f64) * f64::EPSILON {
+        return Err(NumError::Singular {
+            what: format!("{what}: the modal basis"),
+            rcond: rc,
+        });
+    }
+    let lu = d.basis.clone().lu();
+    let b = lu.solve(&sys.b).ok_or_else(|| NumError::Singular {
+        what: format!("{what}: the modal basis"),
+        rcond: rc,
+    })?;
+    let c = &sys.c * &d.basis;
+    let mut a = d.t.clone();
+    // Exactly block diagonal: clear the rounding left outside the blocks.
+    for i in 0..n {
+        for j in 0..n {
+            let inside = d
+                .blocks
+                .iter()
+                .any(|&(s, k)| i >= s && i < s + k && j >= s && j < s + k);
+            if !inside {
+                a[(i, j)] = 0.0;
+            }
+        }
+    }
+    let mut system = sys.with_matrices(a, b, c, sys.d.clone())?;
+    system.names.states.clear();
+    let condition = if rc > 0.0 { 1.0 / rc } else { f64::INFINITY };
+    let mut warnings = d.warnings;
+    warnings.extend(condition_warning(what, condition));
+    Ok(Modal {
+        system,
+        t: d.basis,
+        condition,
+        blocks: d.blocks.iter().map(|&(_, k)| k).collect(),
+        warnings,
+    })
+}
+
+/// The modal realization: real poles on the diagonal, each complex pair as a 2×2 block
+/// `[[σ, ω], [−ω, σ]]`, blocks in the eigenvalue convention's order (ascending σ); a
+/// cluster of repeated or nearly repeated eigenvalues stays one coupled block (with a
+/// warning). Cost O(n³) plus O(n) Schur reorderings.
+pub fn modal_realization(sys: &StateSpace) -> NumResult<Modal> {
+    let mut d = decouple(&sys.a)?;
+    scale_blocks(&mut d);
+    assemble(sys, d, "modal_realization")
+}
+
+/// The real Jordan realization: like the modal form, but each cluster of a repeated real
+/// eigenvalue λ is put in Jordan form (λ on the diagonal, ones on the superdiagonal of
+/// each chain). The chain structure is decided from the numerical ranks of powers of
+/// `N = T_k − λI` restricted to the cluster (singular values above `1e-8·‖T_k‖`), which
+/// is exactly the decision that makes the Jordan form fragile: an arbitrarily small
+/// perturbation can change it. Repeated complex pairs are refused.
+pub fn jordan_realization(sys: &StateSpace) -> NumResult<Modal> {
+    let mut d = decouple(&sys.a)?;
+    scale_blocks(&mut d);
+    let mut new_blocks = Vec::new();
+    for &(s, k) in &d.blocks.clone() {
+        let real_cluster = k > 2
+            || (k == 2 && {
+                let z = block_eigenvalue(&d.t, s, 2);
+                d.t[(s, s + 1)] * d.t[(s + 1, s)] >= 0.0
+                    || z.im.abs() <= NEARLY_DEFECTIVE * (1.0 + z.norm())
+            });
+        if !real_cluster {
+            new_blocks.push((s, k));
+            continue;
+        }
+        let blk = d.t.view((s, s), (k, k)).into_owned();
+        let ev = crate::numeric::linalg::eigen::eigenvalues(&blk)?;
+        if ev
+            .iter()
+            .any(|z| z.im.abs() > NEARLY_DEFECTIVE * (1.0 + z.norm()))
+        {
+            return Err(NumError::invalid(
+                "jordan_realization",
+                "repeated complex eigenvalue pairs are not supported in the real Jordan form; \
+                 use modal_realization, which keeps such a cluster as one coupled block",
+            ));
+        }
+        let lam = ev.iter().map(|z| z.re).sum::<f64>() / k as f64;
+        let (chains, v) = jordan_chains(&blk, lam)?;
+        // New basis for the cluster: basis[:, s..s+k] · V.
+        let old = d.basis.columns(s, k).into_owned();
+        d.basis.columns_mut(s, k).copy_from(&(old * &v));
+        let mut j = DMatrix::zeros(k, k);
+        let mut at = 0;
+        for len in &chains {
+            for i in 0..*len {
+                j[(at + i, at + i)] = lam;
+                if i + 1 < *len {
+                    j[(at + i, at + i + 1)] = 1.0;
+                }
+            }
+            new_blocks.push((s + at, *len));
+            at += len;
+        }
+        d.t.view_mut((s, s), (k, k)).copy_from(&j);
+    }
+    d.blocks = new_blocks;
+    let mut out = assemble(sys, d, "jordan_realization")?;
+    out.warnings.insert(
+        0,
+        "jordan_realization: the Jordan form is numerically fragile — an arbitrarily small \
+         change of A can change its block structure; prefer modal_realization for computation"
+            .into(),
+    );
+    Ok(out)
+}
+
+/// Jordan chains of a k×k block with the single eigenvalue `lam`: returns the chain
+/// lengths and the basis V (columns: each chain as [N^{l−1}v, …, Nv, v]).
+fn jordan_chains(blk: &DMatrix<f64>, lam: f64) -> NumResult<(Vec<usize>, DMatrix<f64>)> {
+    let k = blk.nrows();
+    let nmat = blk - DMatrix::identity(k, k) * lam;
+    let tol = 1e-8 * blk.norm().max(1.0);
+    let rank = |m: &DMatrix<f64>| {
+        m.clone()
+            .singular_values()
+            .iter()
+            .filter(|&&s| s > tol)
+            .count()
+    };
+    // Powers and their ranks until zero.
+    let mut powers = vec![DMatrix::identity(k, k)];
+    let mut ranks = vec![k];
+    while *ranks.last().unwrap_or(&0) > 0 && powers.len() <= k {
+        let next = &nmat * powers.last().unwrap_or(&DMatrix::identity(k, k));
+        ranks.push(rank(&next));
+        powers.push(next);
+    }
+    let top = ranks.len() - 1; // N^top ≈ 0
+    let mut chosen: Vec<DMatrix<f64>> = Vec::new(); // columns chosen so far (span)
+    let mut chains = Vec::new();
+    let mut cols: Vec<nalgebra::DVector<f64>> = Vec::new();
+    for level in (1..=top).rev() {
+        // Vectors v with N^level v = 0 but N^{level−1} v ≠ 0, independent of what the
+        // chains chosen so far span (together with ker N^{level−1}).
+        let count = (ranks[level - 1] - ranks[level])
+            - if level < top {
+                ranks[level] - ranks[level + 1]
+            } else {
+                0
+            };
+        if count == 0 {
+            continue;
+        }
+        // Candidates: vectors of ker N^level ordered by how far N^{level−1} keeps them from
+        // zero (right singular vectors of N^{level−1}·P, P a basis of ker N^level), so the
+        // chains are as well conditioned as the block allows.
+        let svd = powers[level].clone().svd(false, true);
+        let vt = svd.v_t.unwrap_or_else(|| DMatrix::identity(k, k));
+        let null_cols: Vec<nalgebra::DVector<f64>> = (0..k)
+            .filter(|&i| svd.singular_values.get(i).copied().unwrap_or(0.0) <= tol)
+            .map(|i| vt.row(i).transpose())
+            .collect();
+        if null_cols.is_empty() {
+            continue;
+        }
+        let p = DMatrix::from_columns(&null_cols);
+        let mp = &powers[level - 1] * &p;
+        let inner = mp.svd(false, true);
+        let ivt = inner
+            .v_t
+            .unwrap_or_else(|| DMatrix::identity(p.ncols(), p.ncols()));
+        let null: Vec<nalgebra::DVector<f64>> = (0..ivt.nrows())
+            .map(|i| &p * ivt.row(i).transpose())
+            .collect();
+        let mut picked = 0;
+        for cand in null {
+            if picked == count {
+                break;
+            }
+            // Must not be in ker N^{level−1} + span(chosen chain vectors).
+            let mut span: Vec<nalgebra::DVector<f64>> = cols.clone();
+            let lower = powers[level - 1].clone().svd(false, true);
+            if let Some(vt) = lower.v_t {
+                for i in 0..k {
+                    if lower.singular_values.get(i).copied().unwrap_or(0.0) <= tol {
+                        span.push(vt.row(i).transpose());
+                    }
+                }
+            }
+            let r_before = rank_of(&span, tol, k);
+            span.push(cand.clone());
+            if rank_of(&span, tol, k) > r_before {
+                let mut chain: Vec<nalgebra::DVector<f64>> = Vec::new();
+                let mut v = cand.clone();
+                for _ in 0..level {
+                    chain.push(v.clone());
+                    v = &nmat * v;
+                }
+                chain.reverse();
+                cols.extend(chain.iter().cloned());
+                chosen.push(DMatrix::from_columns(&chain));
+                chains.push(level);
+                picked += 1;
+            }
+        }
+    }
+    if cols.len() != k {
+        return Err(NumError::no_solution(
+            "jordan_realization",
+            format!("the Jordan chains of the eigenvalue {lam} could not be separated numerically"),
+        ));
+    }
+    Ok((chains, DMatrix::from_columns(&cols)))
+}
+
+fn rank_of(v: &[nalgebra::DVector<f64>], tol: f64, k: usize) -> usize {
+    if v.is_empty() {
+        return 0;
+    }
+    let m = DMatrix::from_columns(v);
+    let _ = k;
+    m.singular_values().iter().filter(|&&s| s > tol).count()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::numeric::testing::Rng;
+
+    fn model(a: DMatrix<f64>, rng: &mut Rng) -> StateSpace {
+        let n = a.nrows();
+        StateSpace::new(
+            a,
+            rng.matrix(n, 2),
+            rng.matrix(2, n),
+            DMatrix::zeros(2, 2),
+            0.0,
+        )
+        .unwrap()
+    }
+
+    fn same_markov(a: &StateSpace, b: &StateSpace) {
+        for (p, q) in a
+            .markov_parameters(8)
+            .iter()
+            .zip(b.markov_parameters(8).iter())
+        {
+            let scale = 1.0 + p.norm();
+            assert!(
+                (p - q).norm() <= 1e-8 * scale,
+                "Markov parameters differ: {p} vs {q}"
+            );
+        }
+    }
+
+    #[test]
+    fn random_models_become_block_diagonal_with_standard_pairs() {
+        let mut rng = Rng::new(11);
+        for &n in &[1usize, 2, 3, 6, 10] {
+            let sys = model(rng.matrix(n, n), &mut rng);
+            let m = modal_realization(&sys).unwrap();
+            let a = &m.system.a;
+            let mut at = 0;
+            for &k in &m.blocks {
+                if k == 2 {
+                    // [[σ, ω], [−ω, σ]] with ω > 0.
+                    assert!((a[(at, at)] - a[(at + 1, at + 1)]).abs() < 1e-10);
+                    assert!(a[(at, at + 1)] > 0.0);
+                    assert!((a[(at, at + 1)] + a[(at + 1, at)]).abs() < 1e-9 * (1.0 + a.norm()));
+                }
+                at += k;
+            }
+            // Eigenvalues on the diagonal blocks, in ascending real part.
+            let mut prev = f64::NEG_INFINITY;
+            at = 0;
+            for &k in &m.blocks {
+                assert!(a[(at, at)] >= prev - 1e-9);
+                prev = a[(at, at)];
+                at += k;
+            }
+            same_markov(&sys, &m.system);
+        }
+    }
+
+    #[test]
+    fn repeated_eigenvalue_stays_coupled_and_warns() {
+        // A Jordan block hidden by a similarity: eigenvalue −1 twice, defective.
+        let mut rng = Rng::new(5);
+        let j = DMatrix::from_row_slice(3, 3, &[-1.0, 1.0, 0.0, 0.0, -1.0, 0.0, 0.0, 0.0, -3.0]);
+        let t = rng.matrix(3, 3) + DMatrix::identity(3, 3) * 3.0;
+        let a = t.clone().try_inverse().unwrap() * j * &t;
+        let sys = model(a, &mut rng);
+        let m = modal_realization(&sys).unwrap();
+        assert_eq!(m.blocks, vec![1, 2]);
+        assert!(!m.warnings.is_empty());
+        same_markov(&sys, &m.system);
+        let jr = jordan_realization(&sys).unwrap();
+        let ja = &jr.system.a;
+        assert!(
+            (ja[(1, 1)] + 1.0).abs() < 1e-6 && (ja[(1, 2)] - 1.0).abs() < 1e-9,
+            "{ja}"
+        );
+        same_markov(&sys, &jr.system);
+    }
+}

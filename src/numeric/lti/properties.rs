@@ -1,0 +1,168 @@
+//! Poles, stability, modes and steady-state gain of a model.
+
+use super::system::StateSpace;
+use crate::numeric::linalg::eigen::eigenvalues;
+use crate::numeric::{NumError, NumResult};
+use nalgebra::{Complex, DMatrix};
+
+/// The poles: eigenvalues of A, ordered by the convention (ascending real part, then
+/// imaginary part). Balanced real Schur form; see [`eigenvalues`].
+pub fn poles(sys: &StateSpace) -> NumResult<Vec<Complex<f64>>> {
+    eigenvalues(&sys.a)
+}
+
+/// Whether every pole lies strictly inside the stability region: `Re p < 0` for a
+/// continuous model, `|p| < 1` for a discrete one. Poles on the boundary (integrators,
+/// undamped oscillators, `|p| = 1`) count as not stable; no tolerance is applied, so a
+/// pole at −1e−300 counts as stable.
+pub fn is_stable(sys: &StateSpace) -> NumResult<bool> {
+    let p = poles(sys)?;
+    Ok(if sys.is_discrete() {
+        p.iter().all(|z| z.norm() < 1.0)
+    } else {
+        p.iter().all(|z| z.re < 0.0)
+    })
+}
+
+/// One mode of a model: a real pole or a complex pair (listed once, by its member with
+/// positive imaginary part).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Mode {
+    /// The pole (in `s`, or in `z` for a discrete model).
+    pub pole: Complex<f64>,
+    /// Damping ratio ζ = −Re(s)/|s| of the equivalent continuous pole `s` (for a discrete
+    /// pole, `s = ln(z)/dt`); 1 for a real stable pole, −1 for a real unstable one, and 1
+    /// by convention for a pole at the origin.
+    pub damping: f64,
+    /// Natural frequency ωn = |s| in rad/s.
+    pub natural_frequency: f64,
+    /// Time constant τ = −1/Re(s) in seconds: positive for decaying modes, negative for
+    /// growing ones (the e-folding time of growth), infinite on the stability boundary.
+    pub time_constant: f64,
+}
+
+/// The modes of a model in pole order, each complex pair once.
+pub fn modes(sys: &StateSpace) -> NumResult<Vec<Mode>> {
+    let p = poles(sys)?;
+    let mut out = Vec::new();
+    for z in p {
+        if z.im < 0.0 {
+            continue;
+        }
+        let s = if sys.is_discrete() {
+            if z.norm() == 0.0 {
+                // A pole at z = 0 is infinitely fast (deadbeat): s = −∞.
+                out.push(Mode {
+                    pole: z,
+                    damping: 1.0,
+                    natural_frequency: f64::INFINITY,
+                    time_constant: 0.0,
+                });
+                continue;
+            }
+            z.ln() / sys.dt
+        } else {
+            z
+        };
+        let wn = s.norm();
+        let damping = if wn == 0.0 { 1.0 } else { -s.re / wn };
+        let time_constant = if s.re == 0.0 {
+            f64::INFINITY
+        } else {
+            -1.0 / s.re
+        };
+        out.push(Mode {
+            pole: z,
+            damping,
+            natural_frequency: wn,
+            time_constant,
+        });
+    }
+    Ok(out)
+}
+
+/// The steady-state gain: `D − C A⁻¹ B` (continuous) or `D + C (I − A)⁻¹ B` (discrete).
+///
+/// A pole at the origin (continuous) or at z = 1 (discrete) makes the gain unbounded:
+/// every entry of a channel that the integrating mode reaches is then ±∞, the sign
+/// being that of the response to a constant positive input (its slope); entries the
+/// integrator does not reach keep their finite value. Channels are judged on their
+/// minimal realization, so an uncontrollable or unobservable integrator does not count.
+pub fn dc_gain(sys: &StateSpace) -> NumResult<DMatrix<f64>> {
+    let n = sys.order();
+    let (p, m) = (sys.outputs(), sys.inputs());
+    if n == 0 {
+        return Ok(sys.d.clone());
+    }
+    let shifted = if sys.is_discrete() {
+        DMatrix::identity(n, n) - &sys.a
+    } else {
+        -sys.a.clone()
+    };
+    if let Some(x) = well_conditioned_solve(&shifted, &sys.b) {
+        return Ok(&sys.d + &sys.c * x);
+    }
+    // Singular: decide channel by channel on a minimal realization.
+    let mut g = DMatrix::zeros(p, m);
+    for i in 0..p {
+        for j in 0..m {
+            let ch = sys.channel(i, j)?;
+            let min = super::staircase::minimal_realization(&ch.a, &ch.b, &ch.c, &ch.d, None)?;
+            let k = min.a.nrows();
+            let sh = if sys.is_discrete() {
+                DMatrix::identity(k, k) - &min.a
+            } else {
+                -min.a.clone()
+            };
+            g[(i, j)] = match well_conditioned_solve(&sh, &min.b) {
+                Some(x) => (&min.d + &min.c * x)[(0, 0)],
+                None => {
+                    // Slope of the ramp that a step produces: the residue at the integrator,
+                    // approximated from the response at a small positive s.
+                    let s = 1e-8 * (1.0 + min.a.norm());
+                    let z = if sys.is_discrete() { 1.0 + s } else { s };
+                    let mi = DMatrix::identity(k, k) * z - &min.a;
+                    let val = well_conditioned_solve(&mi, &min.b)
+                        .map(|x| (&min.c * x)[(0, 0)])
+                        .unwrap_or(1.0);
+                    if val >= 0.0 {
+                        f64::INFINITY
+                    } else {
+                        f64::NEG_INFINITY
+                    }
+                }
+            };
+        }
+    }
+    Ok(g)
+}
+
+/// Solves M X = B unless M is numerically singular (reciprocal condition below n·ε).
+fn well_conditioned_solve(m: &DMatrix<f64>, b: &DMatrix<f64>) -> Option<DMatrix<f64>> {
+    let n = m.nrows();
+    let sv = m.clone().singular_values();
+    let smax = sv.iter().cloned().fold(0.0, f64::max);
+    let smin = sv.iter().cloned().fold(f64::INFINITY, f64::min);
+    if smax == 0.0 || smin <= (n as f64) * f64::EPSILON * smax {
+        return None;
+    }
+    m.clone().lu().solve(b)
+}
+
+/// Checks a pole list for conjugate closure (used by design routines).
+pub fn conjugate_closed(p: &[Complex<f64>], tol: f64) -> NumResult<()> {
+    for z in p {
+        if z.im != 0.0 {
+            let has = p
+                .iter()
+                .any(|w| (w - z.conj()).norm() <= tol * (1.0 + z.norm()));
+            if !has {
+                return Err(NumError::invalid(
+                    "poles",
+                    format!("{z} has no conjugate partner; complex poles must come in pairs"),
+                ));
+            }
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,192 @@
+//! `save_model` / `load_model`: models in a documented, versioned JSON format of our own
+//! (see docs/model-format.md), read and written inside the sandbox.
+
+use crate::numeric::lti::system::StateSpace;
+use crate::numeric::lti::tf::TransferFunction as Tf;
+use crate::script::convert::{fail, num, to_str, Rr};
+use crate::script::state;
+use crate::script::types::{System, TransferFunction};
+use rhai::{Dynamic, Engine, NativeCallContext};
+use serde_json::{json, Value};
+
+/// The format tag of model files.
+pub const FORMAT: &str = "statebook-model";
+/// The current format version.
+pub const VERSION: i64 = 1;
+
+fn matrix_json(m: &nalgebra::DMatrix<f64>) -> Value {
+    crate::script::json::matrix(m)
+}
+
+/// Encodes a model as a model-file document.
+pub fn encode(v: &Dynamic) -> Rr<Value> {
+    if let Some(s) = v.read_lock::<System>() {
+        let s = &s.0;
+        return Ok(json!({
+            "format": FORMAT,
+            "version": VERSION,
+            "kind": "state_space",
+            "dt": s.dt,
+            "A": matrix_json(&s.a),
+            "B": matrix_json(&s.b),
+            "C": matrix_json(&s.c),
+            "D": matrix_json(&s.d),
+            "names": { "inputs": s.names.inputs, "outputs": s.names.outputs, "states": s.names.states },
+        }));
+    }
+    if let Some(t) = v.read_lock::<TransferFunction>() {
+        return Ok(json!({
+            "format": FORMAT,
+            "version": VERSION,
+            "kind": "transfer_function",
+            "dt": t.0.dt,
+            "num": t.0.num,
+            "den": t.0.den,
+        }));
+    }
+    Err(fail(format!(
+        "save_model: expected a System or TransferFunction, found {}",
+        crate::script::convert::type_name(v)
+    )))
+}
+
+fn matrix_of(
+    v: &Value,
+    key: &str,
+    rows_hint: usize,
+    cols_hint: usize,
+) -> Rr<nalgebra::DMatrix<f64>> {
+    let Some(rows) = v.get(key).and_then(Value::as_array) else {
+        return Err(fail(format!(
+            "load_model: the file has no matrix \"{key}\""
+        )));
+    };
+    if rows.is_empty() {
+        return Ok(nalgebra::DMatrix::zeros(rows_hint, cols_hint));
+    }
+    let mut data: Vec<Vec<f64>> = Vec::new();
+    for (i, r) in rows.iter().enumerate() {
+        let Some(r) = r.as_array() else {
+            return Err(fail(format!("load_model: {key}[{i}] is not a row")));
+        };
+        let row: Option<Vec<f64>> = r.iter().map(Value::as_f64).collect();
+        let Some(row) = row else {
+            return Err(fail(format!(
+                "load_model: {key}[{i}] has a non-numeric entry"
+            )));
+        };
+        if data.first().is_some_and(|f| f.len() != row.len()) {
+            return Err(fail(format!(
+                "load_model: {key} has rows of different lengths"
+            )));
+        }
+        data.push(row);
+    }
+    let (r, c) = (data.len(), data[0].len());
+    Ok(nalgebra::DMatrix::from_fn(r, c, |i, j| data[i][j]))
+}
+
+fn strings(v: &Value, key: &str) -> Vec<String> {
+    v.get("names")
+        .and_then(|n| n.get(key))
+        .and_then(Value::as_array)
+        .map(|a| {
+            a.iter()
+                .filter_map(|s| s.as_str().map(str::to_string))
+                .collect()
+        })
+        .unwrap_or_default()
+}
+
+/// Decodes a model-file document.
+pub fn decode(v: &Value) -> Rr<Dynamic> {
+    if v.get("format").and_then(Value::as_str) != Some(FORMAT) {
+        return Err(fail(
+            "load_model: not a statebook model file (missing \"format\": \"statebook-model\")",
+        ));
+    }
+    let version = v.get("version").and_then(Value::as_i64).unwrap_or(0);
+    if version != VERSION {
+        return Err(fail(format!(
+            "load_model: model file version {version} is not supported (this statebook reads version {VERSION})"
+        )));
+    }
+    let dt = v.get("dt").and_then(Value::as_f64).unwrap_or(0.0);
+    match v.get("kind").and_then(Value::as_str) {
+        Some("state_space") => {
+            let a = matrix_of(v, "A", 0, 0)?;
+            let n = a.nrows();
+            let b = matrix_of(v, "B", n, 0)?;
+            let c = matrix_of(v, "C", 0, n)?;
+            let d = matrix_of(v, "D", c.nrows(), b.ncols())?;
+            let mut s = StateSpace::new(a, b, c, d, dt).map_err(num("load_model"))?;
+            let (ins, outs, sts) = (
+                strings(v, "inputs"),
+                strings(v, "outputs"),
+                strings(v, "states"),
+            );
+            if ins.len() == s.inputs() {
+                s.names.inputs = ins;
+            }
+            if outs.len() == s.outputs() {
+                s.names.outputs = outs;
+            }
+            if sts.len() == s.order() {
+                s.names.states = sts;
+            }
+            Ok(Dynamic::from(System(s)))
+        }
+        Some("transfer_function") => {
+            let list = |k: &str| -> Rr<Vec<f64>> {
+                v.get(k)
+                    .and_then(Value::as_array)
+                    .and_then(|a| a.iter().map(Value::as_f64).collect::<Option<Vec<f64>>>())
+                    .ok_or_else(|| fail(format!("load_model: \"{k}\" must be an array of numbers")))
+            };
+            Tf::new(&list("num")?, &list("den")?, dt)
+                .map(|t| Dynamic::from(TransferFunction(t)))
+                .map_err(num("load_model"))
+        }
+        other => Err(fail(format!("load_model: unknown model kind {other:?}"))),
+    }
+}
+
+/// Registers `save_model` and `load_model`.
+pub fn register(engine: &mut Engine) {
+    engine.register_fn(
+        "save_model",
+        |ctx: NativeCallContext, m: Dynamic, path: Dynamic| -> Rr<()> {
+            let path = to_str(&path, "save_model", "path")?;
+            let Some(st) = state::of(&ctx) else {
+                return Err(fail("save_model: no session"));
+            };
+            let real = st
+                .sandbox
+                .write_path(&path)
+                .map_err(|e| fail(format!("save_model: {e}")))?;
+            let doc = encode(&m)?;
+            let mut text = serde_json::to_string_pretty(&doc).unwrap_or_default();
+            text.push('\n');
+            crate::sandbox::write_atomic(&real, text.as_bytes())
+                .map_err(|e| fail(format!("save_model: cannot write {path}: {e}")))
+        },
+    );
+    engine.register_fn(
+        "load_model",
+        |ctx: NativeCallContext, path: Dynamic| -> Rr<Dynamic> {
+            let path = to_str(&path, "load_model", "path")?;
+            let Some(st) = state::of(&ctx) else {
+                return Err(fail("load_model: no session"));
+            };
+            let real = st
+                .sandbox
+                .read_path(&path)
+                .map_err(|e| fail(format!("load_model: {e}")))?;
+            let text = std::fs::read_to_string(&real)
+                .map_err(|e| fail(format!("load_model: cannot read {path}: {e}")))?;
+            let v: Value = serde_json::from_str(&text)
+                .map_err(|e| fail(format!("load_model: {path} is not valid JSON: {e}")))?;
+            decode(&v)
+        },
+    );
+}
