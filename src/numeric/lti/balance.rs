@@ -383,12 +383,19 @@ fn square_root_svd(
         .max(1)
         .saturating_mul(n)
         .max(10);
-    let svd = SVD::try_new(lo.transpose() * &lc, vectors, vectors, f64::EPSILON, cap).ok_or_else(
-        || NumError::NoConvergence {
-            what: "SVD of the Gramian factor product".to_string(),
-            iterations: cap,
-        },
-    )?;
+    let product = lo.transpose() * &lc;
+    let svd = if vectors {
+        // Verified factors (nalgebra's SVD vectors can be wrong on nearly rank-deficient
+        // input, which is exactly the case of a lightly controllable model).
+        crate::numeric::linalg::dense::verified_svd(&product)?
+    } else {
+        SVD::try_new(product, false, false, f64::EPSILON, cap).ok_or_else(|| {
+            NumError::NoConvergence {
+                what: "SVD of the Gramian factor product".to_string(),
+                iterations: cap,
+            }
+        })?
+    };
     let hsv: Vec<f64> = svd.singular_values.iter().copied().collect();
     if !vectors {
         return Ok((DMatrix::zeros(0, 0), DMatrix::zeros(0, 0), hsv));

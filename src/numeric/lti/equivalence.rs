@@ -307,7 +307,7 @@ fn recover_transform(a: &StateSpace, b: &StateSpace) -> NumResult<DMatrix<f64>> 
                 rhs[(row, 0)] = b.c[(i, j)];
             }
         }
-        let svd = k.svd(true, true);
+        let svd = crate::numeric::linalg::dense::verified_svd(&k)?;
         let x = svd
             .solve(&rhs, 1e-13)
             .map_err(|e| NumError::no_solution("find_transform", e.to_string()))?;
@@ -331,7 +331,8 @@ fn recover_transform(a: &StateSpace, b: &StateSpace) -> NumResult<DMatrix<f64>> 
         let ka = krylov(a);
         let kb = krylov(b);
         let kb_norm = kb.norm();
-        let pinv = kb
+        let svd = crate::numeric::linalg::dense::verified_svd(&kb)?;
+        let pinv = svd
             .pseudo_inverse(1e-14 * kb_norm)
             .map_err(|e| NumError::no_solution("find_transform", e.to_string()))?;
         ka * pinv

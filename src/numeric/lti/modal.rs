@@ -338,7 +338,7 @@ fn jordan_chains(blk: &DMatrix<f64>, lam: f64) -> NumResult<(Vec<usize>, DMatrix
         // Candidates: vectors of ker N^level ordered by how far N^{level−1} keeps them from
         // zero (right singular vectors of N^{level−1}·P, P a basis of ker N^level), so the
         // chains are as well conditioned as the block allows.
-        let svd = powers[level].clone().svd(false, true);
+        let svd = crate::numeric::linalg::dense::verified_svd(&powers[level])?;
         let vt = svd.v_t.unwrap_or_else(|| DMatrix::identity(k, k));
         let null_cols: Vec<nalgebra::DVector<f64>> = (0..k)
             .filter(|&i| svd.singular_values.get(i).copied().unwrap_or(0.0) <= tol)
@@ -349,7 +349,7 @@ fn jordan_chains(blk: &DMatrix<f64>, lam: f64) -> NumResult<(Vec<usize>, DMatrix
         }
         let p = DMatrix::from_columns(&null_cols);
         let mp = &powers[level - 1] * &p;
-        let inner = mp.svd(false, true);
+        let inner = crate::numeric::linalg::dense::verified_svd(&mp)?;
         let ivt = inner
             .v_t
             .unwrap_or_else(|| DMatrix::identity(p.ncols(), p.ncols()));
@@ -363,7 +363,7 @@ fn jordan_chains(blk: &DMatrix<f64>, lam: f64) -> NumResult<(Vec<usize>, DMatrix
             }
             // Must not be in ker N^{level−1} + span(chosen chain vectors).
             let mut span: Vec<nalgebra::DVector<f64>> = cols.clone();
-            let lower = powers[level - 1].clone().svd(false, true);
+            let lower = crate::numeric::linalg::dense::verified_svd(&powers[level - 1])?;
             if let Some(vt) = lower.v_t {
                 for i in 0..k {
                     if lower.singular_values.get(i).copied().unwrap_or(0.0) <= tol {

@@ -53,6 +53,7 @@ use nalgebra::DMatrix;
 // that loads this file by #[path].
 #[path = "staircase/factor.rs"]
 mod factor;
+pub(crate) use factor::row_jacobi;
 #[cfg(test)]
 #[path = "staircase/fixtures.rs"]
 mod fixtures;

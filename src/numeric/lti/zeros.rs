@@ -17,7 +17,6 @@
 use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
 use crate::numeric::linalg::qz;
-use nalgebra::linalg::SVD;
 use nalgebra::{Complex, DMatrix};
 
 /// Tolerances of the zero computation.
@@ -291,13 +290,8 @@ fn row_compress(m: &DMatrix<f64>, thr: f64) -> NumResult<(DMatrix<f64>, usize)> 
     } else {
         m.clone()
     };
-    let max_iterations = 1000 * (r + c);
-    let svd = SVD::try_new(work, true, false, f64::EPSILON, max_iterations).ok_or_else(|| {
-        NumError::NoConvergence {
-            what: "singular value decomposition".to_string(),
-            iterations: max_iterations,
-        }
-    })?;
+    // Verified factors (nalgebra's SVD vectors can be wrong on nearly rank-deficient input).
+    let svd = crate::numeric::linalg::dense::verified_svd(&work)?;
     let u = svd.u.ok_or_else(|| NumError::NoConvergence {
         what: "singular value decomposition".to_string(),
         iterations: 0,

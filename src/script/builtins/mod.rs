@@ -3,6 +3,7 @@
 
 pub mod arith;
 pub mod complex;
+pub mod files;
 pub mod linalg;
 pub mod lti;
 pub mod matrix;

@@ -1,0 +1,171 @@
+//! Analysis files end to end: run, render, check, new, CSV, and path refusals.
+
+use statebook::notebook::output::Output;
+use statebook::notebook::{files, run};
+use statebook::{Session, SessionOptions};
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_statebook"))
+}
+
+fn temp_dir(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("statebook-nb-{name}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).expect("temp dir");
+    d
+}
+
+fn text(b: &[u8]) -> String {
+    String::from_utf8_lossy(b).into_owned()
+}
+
+const ANALYSIS: &str = "//== Damped spring (invented numbers)
+//> The model has **two** states.
+let A = matrix([[0, 1], [-4, -0.8]]);
+fn decay(t) { exp(-0.4 * t) }
+//== Figure
+let t = linear_grid(0, 10, 50);
+plot(t, t.map(|v| decay(v)), #{ title: \"envelope\" })
+//== Records
+record(\"eigenvalues\", eigenvalues(A));
+record(\"trace\", A.trace());
+print(\"done\");
+";
+
+fn run_in(dir: &Path, src: &str) -> statebook::notebook::output::NotebookRun {
+    let mut s = Session::new(&SessionOptions { root: dir.to_path_buf(), ..SessionOptions::default() });
+    run::run_text(&mut s, src, "x.sbook", files::provenance("x.sbook", "0"))
+}
+
+#[test]
+fn runner_shares_scope_and_functions_across_cells_in_order() {
+    let d = temp_dir("runner");
+    let r = run_in(&d, "//== A\nlet x = 2;\nfn twice(v) { v * 2 }\nprint(\"a\");\n//== B\nprint(twice(x));\nshow(x + 1);\nnote(\"n\");\nx * 10\n");
+    assert!(!r.failed);
+    assert_eq!(r.cells.len(), 2);
+    assert_eq!(r.cells[0].outputs, vec![Output::Text("a".into())]);
+    assert_eq!(
+        r.cells[1].outputs,
+        vec![
+            Output::Text("4".into()),
+            Output::Value("3".into()),
+            Output::Note("n".into()),
+            Output::Value("20".into())
+        ]
+    );
+}
+
+#[test]
+fn render_writes_a_self_contained_report_and_results() {
+    let d = temp_dir("render");
+    let f = d.join("spring.sbook");
+    std::fs::write(&f, ANALYSIS).expect("write");
+    let out = bin().arg("render").arg(&f).output().expect("run");
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    let html = std::fs::read_to_string(d.join("spring.html")).expect("report");
+    assert_eq!(html.matches("<svg").count(), 1, "one inline svg per figure");
+    let without_ns = html.replace("http://www.w3.org/2000/svg", "");
+    assert!(!without_ns.contains("http://") && !without_ns.contains("https://"), "no external references");
+    assert!(html.contains("<strong>two</strong>"), "Markdown rendered");
+    assert!(html.contains("Damped spring"));
+    let results = std::fs::read_to_string(d.join("spring.results.json")).expect("results");
+    assert!(results.contains("\"eigenvalues\"") && results.contains("\"trace\""));
+    // Byte-stable apart from the provenance block.
+    let out = bin().arg("render").arg(&f).output().expect("run");
+    assert_eq!(out.status.code(), Some(0));
+    let again = std::fs::read_to_string(d.join("spring.html")).expect("report");
+    let cut = |s: &str| s.split("provenance").next().unwrap_or("").to_string();
+    assert_eq!(cut(&html), cut(&again));
+    assert_eq!(results, std::fs::read_to_string(d.join("spring.results.json")).expect("results"));
+}
+
+#[test]
+fn markdown_report_writes_figures_beside_it() {
+    let d = temp_dir("md");
+    let f = d.join("spring.sbook");
+    std::fs::write(&f, ANALYSIS).expect("write");
+    let out = bin().args(["render", "--format", "md"]).arg(&f).output().expect("run");
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    let md = std::fs::read_to_string(d.join("spring.md")).expect("md");
+    let svgs: Vec<_> = std::fs::read_dir(&d)
+        .expect("dir")
+        .filter_map(|e| e.ok())
+        .filter(|e| e.path().extension().is_some_and(|x| x == "svg"))
+        .collect();
+    assert_eq!(svgs.len(), 1);
+    let name = svgs[0].file_name().to_string_lossy().into_owned();
+    assert!(md.contains(&name), "{md}");
+}
+
+#[test]
+fn check_passes_then_reports_drift_and_missing_records() {
+    let d = temp_dir("check");
+    let f = d.join("spring.sbook");
+    std::fs::write(&f, ANALYSIS).expect("write");
+    assert_eq!(bin().arg("render").arg(&f).output().expect("run").status.code(), Some(0));
+    let out = bin().arg("check").arg(&f).output().expect("run");
+    assert_eq!(out.status.code(), Some(0), "{}{}", text(&out.stdout), text(&out.stderr));
+    assert!(text(&out.stdout).contains("check passed"));
+    // Drift: the analysis changes a number.
+    std::fs::write(&f, ANALYSIS.replace("-0.8", "-0.81")).expect("write");
+    let out = bin().arg("check").arg(&f).output().expect("run");
+    assert_eq!(out.status.code(), Some(1));
+    let s = text(&out.stdout);
+    assert!(s.contains("check FAILED") && s.contains("trace") && s.contains("relative difference"), "{s}");
+    // A record disappears.
+    std::fs::write(&f, ANALYSIS.replace("record(\"trace\", A.trace());", "")).expect("write");
+    let out = bin().arg("check").arg(&f).output().expect("run");
+    assert_eq!(out.status.code(), Some(1));
+    assert!(text(&out.stdout).contains("(missing)"));
+    // A tolerance flag loosens the comparison.
+    std::fs::write(&f, ANALYSIS.replace("-0.8", "-0.8000000001")).expect("write");
+    let out = bin().args(["check", "--tolerance", "1e-6"]).arg(&f).output().expect("run");
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stdout));
+}
+
+#[test]
+fn a_failing_cell_stops_render_and_keeps_the_old_report() {
+    let d = temp_dir("fail");
+    let f = d.join("a.sbook");
+    std::fs::write(&f, ANALYSIS).expect("write");
+    assert_eq!(bin().arg("render").arg(&f).output().expect("run").status.code(), Some(0));
+    let before = std::fs::read_to_string(d.join("a.html")).expect("report");
+    std::fs::write(&f, format!("{ANALYSIS}//== Broken\nlet bad = identity(2) * row([1, 2, 3]);\n")).expect("write");
+    let out = bin().arg("render").arg(&f).output().expect("run");
+    assert_eq!(out.status.code(), Some(1));
+    assert!(text(&out.stderr).contains("a.sbook:13:"), "{}", text(&out.stderr));
+    assert_eq!(before, std::fs::read_to_string(d.join("a.html")).expect("report"));
+}
+
+#[test]
+fn new_writes_a_starter_that_runs_and_never_overwrites() {
+    let d = temp_dir("new");
+    let f = d.join("fresh.sbook");
+    assert_eq!(bin().arg("new").arg(&f).output().expect("run").status.code(), Some(0));
+    assert_eq!(bin().arg("render").arg(&f).output().expect("run").status.code(), Some(0));
+    assert_eq!(bin().arg("check").arg(&f).output().expect("run").status.code(), Some(0));
+    assert_eq!(bin().arg("new").arg(&f).output().expect("run").status.code(), Some(1));
+}
+
+#[test]
+fn csv_round_trip_and_path_refusals() {
+    let d = temp_dir("csv");
+    std::fs::create_dir_all(d.join("data")).expect("dir");
+    let r = run_in(
+        &d,
+        "let m = matrix([[0, 1.5], [0.1, -2e-9]]);\nwrite_csv(\"data/out.csv\", m, [\"t\", \"y\"]);\nlet back = read_csv(\"data/out.csv\");\nrequire(back == m, \"round trip\");\n",
+    );
+    assert!(!r.failed, "{:?}", run::first_error(&r));
+    for (code, what) in [
+        ("read_csv(\"../outside.csv\")", "outside the analysis folder"),
+        ("read_csv(\"/etc/passwd\")", "outside the analysis folder"),
+        ("write_csv(\"../x.csv\", identity(2))", "outside the analysis folder"),
+        ("write_csv(\"/tmp/statebook-x.csv\", identity(2))", "outside the analysis folder"),
+    ] {
+        let r = run_in(&d, code);
+        let e = run::first_error(&r).unwrap_or_default().to_string();
+        assert!(r.failed && e.contains(what), "{code}: {e}");
+    }
+}
