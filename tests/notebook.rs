@@ -35,7 +35,10 @@ print(\"done\");
 ";
 
 fn run_in(dir: &Path, src: &str) -> statebook::notebook::output::NotebookRun {
-    let mut s = Session::new(&SessionOptions { root: dir.to_path_buf(), ..SessionOptions::default() });
+    let mut s = Session::new(&SessionOptions {
+        root: dir.to_path_buf(),
+        ..SessionOptions::default()
+    });
     run::run_text(&mut s, src, "x.sbook", files::provenance("x.sbook", "0"))
 }
 
@@ -67,7 +70,10 @@ fn render_writes_a_self_contained_report_and_results() {
     let html = std::fs::read_to_string(d.join("spring.html")).expect("report");
     assert_eq!(html.matches("<svg").count(), 1, "one inline svg per figure");
     let without_ns = html.replace("http://www.w3.org/2000/svg", "");
-    assert!(!without_ns.contains("http://") && !without_ns.contains("https://"), "no external references");
+    assert!(
+        !without_ns.contains("http://") && !without_ns.contains("https://"),
+        "no external references"
+    );
     assert!(html.contains("<strong>two</strong>"), "Markdown rendered");
     assert!(html.contains("Damped spring"));
     let results = std::fs::read_to_string(d.join("spring.results.json")).expect("results");
@@ -78,7 +84,10 @@ fn render_writes_a_self_contained_report_and_results() {
     let again = std::fs::read_to_string(d.join("spring.html")).expect("report");
     let cut = |s: &str| s.split("provenance").next().unwrap_or("").to_string();
     assert_eq!(cut(&html), cut(&again));
-    assert_eq!(results, std::fs::read_to_string(d.join("spring.results.json")).expect("results"));
+    assert_eq!(
+        results,
+        std::fs::read_to_string(d.join("spring.results.json")).expect("results")
+    );
 }
 
 #[test]
@@ -86,7 +95,11 @@ fn markdown_report_writes_figures_beside_it() {
     let d = temp_dir("md");
     let f = d.join("spring.sbook");
     std::fs::write(&f, ANALYSIS).expect("write");
-    let out = bin().args(["render", "--format", "md"]).arg(&f).output().expect("run");
+    let out = bin()
+        .args(["render", "--format", "md"])
+        .arg(&f)
+        .output()
+        .expect("run");
     assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
     let md = std::fs::read_to_string(d.join("spring.md")).expect("md");
     let svgs: Vec<_> = std::fs::read_dir(&d)
@@ -104,16 +117,34 @@ fn check_passes_then_reports_drift_and_missing_records() {
     let d = temp_dir("check");
     let f = d.join("spring.sbook");
     std::fs::write(&f, ANALYSIS).expect("write");
-    assert_eq!(bin().arg("render").arg(&f).output().expect("run").status.code(), Some(0));
+    assert_eq!(
+        bin()
+            .arg("render")
+            .arg(&f)
+            .output()
+            .expect("run")
+            .status
+            .code(),
+        Some(0)
+    );
     let out = bin().arg("check").arg(&f).output().expect("run");
-    assert_eq!(out.status.code(), Some(0), "{}{}", text(&out.stdout), text(&out.stderr));
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}{}",
+        text(&out.stdout),
+        text(&out.stderr)
+    );
     assert!(text(&out.stdout).contains("check passed"));
     // Drift: the analysis changes a number.
     std::fs::write(&f, ANALYSIS.replace("-0.8", "-0.81")).expect("write");
     let out = bin().arg("check").arg(&f).output().expect("run");
     assert_eq!(out.status.code(), Some(1));
     let s = text(&out.stdout);
-    assert!(s.contains("check FAILED") && s.contains("trace") && s.contains("relative difference"), "{s}");
+    assert!(
+        s.contains("check FAILED") && s.contains("trace") && s.contains("relative difference"),
+        "{s}"
+    );
     // A record disappears.
     std::fs::write(&f, ANALYSIS.replace("record(\"trace\", A.trace());", "")).expect("write");
     let out = bin().arg("check").arg(&f).output().expect("run");
@@ -121,7 +152,11 @@ fn check_passes_then_reports_drift_and_missing_records() {
     assert!(text(&out.stdout).contains("(missing)"));
     // A tolerance flag loosens the comparison.
     std::fs::write(&f, ANALYSIS.replace("-0.8", "-0.8000000001")).expect("write");
-    let out = bin().args(["check", "--tolerance", "1e-6"]).arg(&f).output().expect("run");
+    let out = bin()
+        .args(["check", "--tolerance", "1e-6"])
+        .arg(&f)
+        .output()
+        .expect("run");
     assert_eq!(out.status.code(), Some(0), "{}", text(&out.stdout));
 }
 
@@ -130,23 +165,79 @@ fn a_failing_cell_stops_render_and_keeps_the_old_report() {
     let d = temp_dir("fail");
     let f = d.join("a.sbook");
     std::fs::write(&f, ANALYSIS).expect("write");
-    assert_eq!(bin().arg("render").arg(&f).output().expect("run").status.code(), Some(0));
+    assert_eq!(
+        bin()
+            .arg("render")
+            .arg(&f)
+            .output()
+            .expect("run")
+            .status
+            .code(),
+        Some(0)
+    );
     let before = std::fs::read_to_string(d.join("a.html")).expect("report");
-    std::fs::write(&f, format!("{ANALYSIS}//== Broken\nlet bad = identity(2) * row([1, 2, 3]);\n")).expect("write");
+    std::fs::write(
+        &f,
+        format!("{ANALYSIS}//== Broken\nlet bad = identity(2) * row([1, 2, 3]);\n"),
+    )
+    .expect("write");
     let out = bin().arg("render").arg(&f).output().expect("run");
     assert_eq!(out.status.code(), Some(1));
-    assert!(text(&out.stderr).contains("a.sbook:13:"), "{}", text(&out.stderr));
-    assert_eq!(before, std::fs::read_to_string(d.join("a.html")).expect("report"));
+    assert!(
+        text(&out.stderr).contains("a.sbook:13:"),
+        "{}",
+        text(&out.stderr)
+    );
+    assert_eq!(
+        before,
+        std::fs::read_to_string(d.join("a.html")).expect("report")
+    );
 }
 
 #[test]
 fn new_writes_a_starter_that_runs_and_never_overwrites() {
     let d = temp_dir("new");
     let f = d.join("fresh.sbook");
-    assert_eq!(bin().arg("new").arg(&f).output().expect("run").status.code(), Some(0));
-    assert_eq!(bin().arg("render").arg(&f).output().expect("run").status.code(), Some(0));
-    assert_eq!(bin().arg("check").arg(&f).output().expect("run").status.code(), Some(0));
-    assert_eq!(bin().arg("new").arg(&f).output().expect("run").status.code(), Some(1));
+    assert_eq!(
+        bin()
+            .arg("new")
+            .arg(&f)
+            .output()
+            .expect("run")
+            .status
+            .code(),
+        Some(0)
+    );
+    assert_eq!(
+        bin()
+            .arg("render")
+            .arg(&f)
+            .output()
+            .expect("run")
+            .status
+            .code(),
+        Some(0)
+    );
+    assert_eq!(
+        bin()
+            .arg("check")
+            .arg(&f)
+            .output()
+            .expect("run")
+            .status
+            .code(),
+        Some(0)
+    );
+    assert_eq!(
+        bin()
+            .arg("new")
+            .arg(&f)
+            .output()
+            .expect("run")
+            .status
+            .code(),
+        Some(1)
+    );
 }
 
 #[test]
@@ -159,10 +250,19 @@ fn csv_round_trip_and_path_refusals() {
     );
     assert!(!r.failed, "{:?}", run::first_error(&r));
     for (code, what) in [
-        ("read_csv(\"../outside.csv\")", "outside the analysis folder"),
+        (
+            "read_csv(\"../outside.csv\")",
+            "outside the analysis folder",
+        ),
         ("read_csv(\"/etc/passwd\")", "outside the analysis folder"),
-        ("write_csv(\"../x.csv\", identity(2))", "outside the analysis folder"),
-        ("write_csv(\"/tmp/statebook-x.csv\", identity(2))", "outside the analysis folder"),
+        (
+            "write_csv(\"../x.csv\", identity(2))",
+            "outside the analysis folder",
+        ),
+        (
+            "write_csv(\"/tmp/statebook-x.csv\", identity(2))",
+            "outside the analysis folder",
+        ),
     ] {
         let r = run_in(&d, code);
         let e = run::first_error(&r).unwrap_or_default().to_string();

@@ -222,7 +222,10 @@ fn thin_svd(
         verified_factors(&scaled, cap)?
     } else {
         nalgebra::SVD::try_new(scaled, false, false, f64::EPSILON, cap).ok_or_else(|| {
-            NumError::NoConvergence { what: "singular value decomposition".into(), iterations: cap }
+            NumError::NoConvergence {
+                what: "singular value decomposition".into(),
+                iterations: cap,
+            }
         })?
     };
     svd.singular_values.apply(|v| *v = times_pow2(*v, e));
@@ -233,7 +236,12 @@ fn thin_svd(
 pub type Svd = nalgebra::SVD<f64, nalgebra::Dyn, nalgebra::Dyn>;
 
 /// Whether thin factors reproduce `a` and are orthonormal to 64·max(r, c)·ε.
-fn factors_ok(a: &DMatrix<f64>, u: &DMatrix<f64>, s: &nalgebra::DVector<f64>, vt: &DMatrix<f64>) -> bool {
+fn factors_ok(
+    a: &DMatrix<f64>,
+    u: &DMatrix<f64>,
+    s: &nalgebra::DVector<f64>,
+    vt: &DMatrix<f64>,
+) -> bool {
     let k = s.len();
     let tol = 64.0 * (a.nrows().max(a.ncols()) as f64) * f64::EPSILON;
     let mut us = u.clone();
@@ -244,7 +252,9 @@ fn factors_ok(a: &DMatrix<f64>, u: &DMatrix<f64>, s: &nalgebra::DVector<f64>, vt
     let rec = (&us * vt - a).norm();
     let orth_u = (u.transpose() * u - DMatrix::identity(k, k)).norm();
     let orth_v = (vt * vt.transpose() - DMatrix::identity(k, k)).norm();
-    rec <= tol * a.norm().max(f64::MIN_POSITIVE) && orth_u <= tol * k as f64 && orth_v <= tol * k as f64
+    rec <= tol * a.norm().max(f64::MIN_POSITIVE)
+        && orth_u <= tol * k as f64
+        && orth_v <= tol * k as f64
 }
 
 /// A verified thin SVD with vectors of a finite, non-empty (scaled) matrix.
@@ -262,7 +272,11 @@ fn verified_factors(a: &DMatrix<f64>, cap: usize) -> NumResult<Svd> {
         if let (Some(u), Some(vt)) = (f.u.clone(), f.v_t.clone()) {
             let (u2, vt2) = (vt.transpose(), u.transpose());
             if factors_ok(a, &u2, &f.singular_values, &vt2) {
-                return Ok(nalgebra::SVD { u: Some(u2), v_t: Some(vt2), singular_values: f.singular_values });
+                return Ok(nalgebra::SVD {
+                    u: Some(u2),
+                    v_t: Some(vt2),
+                    singular_values: f.singular_values,
+                });
             }
         }
     }
@@ -273,7 +287,11 @@ fn verified_factors(a: &DMatrix<f64>, cap: usize) -> NumResult<Svd> {
         if let (Some(u), Some(vt)) = (f.u.clone(), f.v_t.clone()) {
             let vt2 = DMatrix::from_fn(vt.nrows(), c, |i, j| vt[(i, c - 1 - j)]);
             if factors_ok(a, &u, &f.singular_values, &vt2) {
-                return Ok(nalgebra::SVD { u: Some(u), v_t: Some(vt2), singular_values: f.singular_values });
+                return Ok(nalgebra::SVD {
+                    u: Some(u),
+                    v_t: Some(vt2),
+                    singular_values: f.singular_values,
+                });
             }
         }
     }
@@ -288,7 +306,11 @@ fn jacobi_factors(a: &DMatrix<f64>) -> NumResult<Svd> {
     if r > c {
         let t = jacobi_factors(&a.transpose())?;
         let (u, vt) = (t.u.unwrap_or_default(), t.v_t.unwrap_or_default());
-        return Ok(nalgebra::SVD { u: Some(vt.transpose()), v_t: Some(u.transpose()), singular_values: t.singular_values });
+        return Ok(nalgebra::SVD {
+            u: Some(vt.transpose()),
+            v_t: Some(u.transpose()),
+            singular_values: t.singular_values,
+        });
     }
     // r ≤ c: A = U W, W r×c with orthogonal rows of norms σ.
     let (sigma, u, w) = crate::numeric::lti::staircase::row_jacobi(a)?;
@@ -320,8 +342,13 @@ fn jacobi_factors(a: &DMatrix<f64>) -> NumResult<Svd> {
         }
     }
     let vt = DMatrix::from_rows(&rows);
-    let s = nalgebra::DVector::from_iterator(r, sigma.iter().map(|&x| if x > tiny { x } else { 0.0 }));
-    Ok(nalgebra::SVD { u: Some(u), v_t: Some(vt), singular_values: s })
+    let s =
+        nalgebra::DVector::from_iterator(r, sigma.iter().map(|&x| if x > tiny { x } else { 0.0 }));
+    Ok(nalgebra::SVD {
+        u: Some(u),
+        v_t: Some(vt),
+        singular_values: s,
+    })
 }
 
 /// nalgebra's thin SVD structure, with vectors verified and singular values sorted in
@@ -331,7 +358,10 @@ pub fn verified_svd(a: &DMatrix<f64>) -> NumResult<Svd> {
     check::finite("A", a)?;
     let f = thin_svd(a, true)?;
     let (Some(u), Some(vt)) = (f.u, f.v_t) else {
-        return Err(NumError::NoConvergence { what: "singular value decomposition".into(), iterations: 0 });
+        return Err(NumError::NoConvergence {
+            what: "singular value decomposition".into(),
+            iterations: 0,
+        });
     };
     let k = f.singular_values.len();
     let mut idx: Vec<usize> = (0..k).collect();
@@ -339,7 +369,11 @@ pub fn verified_svd(a: &DMatrix<f64>) -> NumResult<Svd> {
     let u2 = DMatrix::from_fn(u.nrows(), k, |i, j| u[(i, idx[j])]);
     let vt2 = DMatrix::from_fn(k, vt.ncols(), |i, j| vt[(idx[i], j)]);
     let s2 = nalgebra::DVector::from_iterator(k, idx.iter().map(|&i| f.singular_values[i]));
-    Ok(nalgebra::SVD { u: Some(u2), v_t: Some(vt2), singular_values: s2 })
+    Ok(nalgebra::SVD {
+        u: Some(u2),
+        v_t: Some(vt2),
+        singular_values: s2,
+    })
 }
 
 /// Thin singular value decomposition with verified vectors: `(U, σ, Vᵀ)` with `A = U
@@ -354,7 +388,10 @@ pub fn svd_factors(a: &DMatrix<f64>) -> NumResult<(DMatrix<f64>, Vec<f64>, DMatr
     let f = thin_svd(a, true)?;
     match (f.u, f.v_t) {
         (Some(u), Some(vt)) => Ok((u, f.singular_values.iter().copied().collect(), vt)),
-        _ => Err(NumError::NoConvergence { what: "singular value decomposition".into(), iterations: 0 }),
+        _ => Err(NumError::NoConvergence {
+            what: "singular value decomposition".into(),
+            iterations: 0,
+        }),
     }
 }
 

@@ -10,18 +10,25 @@ use rhai::{Array, Dynamic, Engine, NativeCallContext};
 
 /// Help entries of this file.
 pub const DOCS: &[Doc] = &[
-    Doc { name: "read_csv", family: "output and files", usage: "read_csv(path) → Matrix",
+    Doc {
+        name: "read_csv",
+        family: "output and files",
+        usage: "read_csv(path) → Matrix",
         summary: "reads a numeric CSV file (an optional header row is skipped)",
         details: "path: relative to the analysis file, inside its folder. Cells are separated \
                   by commas; a first row that is not all numbers is taken as the header. Every \
                   other row must hold the same number of numeric cells.",
-        example: "let data = read_csv(\"measured.csv\");" },
-    Doc { name: "write_csv", family: "output and files",
+        example: "let data = read_csv(\"measured.csv\");",
+    },
+    Doc {
+        name: "write_csv",
+        family: "output and files",
         usage: "write_csv(path, matrix)\nwrite_csv(path, matrix, headers)",
         summary: "writes a matrix as CSV, with an optional header row",
         details: "headers: an array of strings, one per column. Numbers are written with 17 \
                   significant digits so that read_csv gives back the same values.",
-        example: "write_csv(\"response.csv\", matrix([[0, 1], [0.1, 0.9]]), [\"t\", \"y\"]);" },
+        example: "write_csv(\"response.csv\", matrix([[0, 1], [0.1, 0.9]]), [\"t\", \"y\"]);",
+    },
 ];
 
 /// Splits one CSV line into cells (double quotes group, `""` is a literal quote).
@@ -121,7 +128,12 @@ pub fn format_csv(m: &DMatrix<f64>, headers: Option<&[String]>) -> String {
     s
 }
 
-fn write(ctx: &NativeCallContext, path: &Dynamic, m: &Dynamic, headers: Option<&Dynamic>) -> Rr<()> {
+fn write(
+    ctx: &NativeCallContext,
+    path: &Dynamic,
+    m: &Dynamic,
+    headers: Option<&Dynamic>,
+) -> Rr<()> {
     let f = "write_csv";
     let path = to_str(path, f, "path")?;
     let m = to_matrix(m, f, "matrix")?;
@@ -131,8 +143,11 @@ fn write(ctx: &NativeCallContext, path: &Dynamic, m: &Dynamic, headers: Option<&
             let Some(a) = h.read_lock::<Array>() else {
                 return Err(fail("write_csv: headers must be an array of strings"));
             };
-            let v: Vec<String> =
-                a.iter().enumerate().map(|(k, x)| to_str(x, f, &format!("headers[{k}]"))).collect::<Rr<_>>()?;
+            let v: Vec<String> = a
+                .iter()
+                .enumerate()
+                .map(|(k, x)| to_str(x, f, &format!("headers[{k}]")))
+                .collect::<Rr<_>>()?;
             if v.len() != m.ncols() {
                 return Err(fail(format!(
                     "write_csv: {} headers for a matrix with {} columns",
@@ -143,8 +158,13 @@ fn write(ctx: &NativeCallContext, path: &Dynamic, m: &Dynamic, headers: Option<&
             Some(v)
         }
     };
-    let Some(st) = state::of(ctx) else { return Err(fail("write_csv: no session")) };
-    let real = st.sandbox.write_path(&path).map_err(|e| fail(format!("write_csv: {e}")))?;
+    let Some(st) = state::of(ctx) else {
+        return Err(fail("write_csv: no session"));
+    };
+    let real = st
+        .sandbox
+        .write_path(&path)
+        .map_err(|e| fail(format!("write_csv: {e}")))?;
     let text = format_csv(&m, headers.as_deref());
     crate::sandbox::write_atomic(&real, text.as_bytes())
         .map_err(|e| fail(format!("write_csv: cannot write {path}: {e}")))
@@ -152,23 +172,37 @@ fn write(ctx: &NativeCallContext, path: &Dynamic, m: &Dynamic, headers: Option<&
 
 /// Registers the file built-ins.
 pub fn register(engine: &mut Engine) {
-    engine.register_fn("read_csv", |ctx: NativeCallContext, path: Dynamic| -> Rr<Dynamic> {
-        let path = to_str(&path, "read_csv", "path")?;
-        let Some(st) = state::of(&ctx) else { return Err(fail("read_csv: no session")) };
-        let real = st.sandbox.read_path(&path).map_err(|e| fail(format!("read_csv: {e}")))?;
-        let text = std::fs::read_to_string(&real)
-            .map_err(|e| fail(format!("read_csv: cannot read {path}: {e}")))?;
-        let (_, m) = parse_csv(&text, &path).map_err(|e| fail(format!("read_csv: {e}")))?;
-        let limit = st.limits.matrix_entries;
-        if m.len() > limit {
-            return Err(fail(format!("read_csv: {path} has more than {limit} entries")));
-        }
-        Ok(matrix_value(m))
-    });
-    engine.register_fn("write_csv", |ctx: NativeCallContext, p: Dynamic, m: Dynamic| write(&ctx, &p, &m, None));
-    engine.register_fn("write_csv", |ctx: NativeCallContext, p: Dynamic, m: Dynamic, h: Dynamic| {
-        write(&ctx, &p, &m, Some(&h))
-    });
+    engine.register_fn(
+        "read_csv",
+        |ctx: NativeCallContext, path: Dynamic| -> Rr<Dynamic> {
+            let path = to_str(&path, "read_csv", "path")?;
+            let Some(st) = state::of(&ctx) else {
+                return Err(fail("read_csv: no session"));
+            };
+            let real = st
+                .sandbox
+                .read_path(&path)
+                .map_err(|e| fail(format!("read_csv: {e}")))?;
+            let text = std::fs::read_to_string(&real)
+                .map_err(|e| fail(format!("read_csv: cannot read {path}: {e}")))?;
+            let (_, m) = parse_csv(&text, &path).map_err(|e| fail(format!("read_csv: {e}")))?;
+            let limit = st.limits.matrix_entries;
+            if m.len() > limit {
+                return Err(fail(format!(
+                    "read_csv: {path} has more than {limit} entries"
+                )));
+            }
+            Ok(matrix_value(m))
+        },
+    );
+    engine.register_fn(
+        "write_csv",
+        |ctx: NativeCallContext, p: Dynamic, m: Dynamic| write(&ctx, &p, &m, None),
+    );
+    engine.register_fn(
+        "write_csv",
+        |ctx: NativeCallContext, p: Dynamic, m: Dynamic, h: Dynamic| write(&ctx, &p, &m, Some(&h)),
+    );
 }
 
 #[cfg(test)]
