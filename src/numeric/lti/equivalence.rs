@@ -80,9 +80,14 @@ fn grid(a: &StateSpace, b: &StateSpace) -> NumResult<Vec<f64>> {
             }
         }
     }
-    let lo = mags.iter().cloned().fold(f64::INFINITY, f64::min);
-    let hi = mags.iter().cloned().fold(0.0, f64::max);
-    let (lo, hi) = if mags.is_empty() {
+    // Poles at (numerically) the origin are integrators: they set no frequency scale, and
+    // ω = 0 is left out so that the grid never sits on them.
+    let top = mags.iter().cloned().fold(0.0, f64::max);
+    let integrator = mags.len() < a.order() + b.order() || mags.iter().any(|&m| m <= 1e-9 * top);
+    let scales: Vec<f64> = mags.iter().cloned().filter(|&m| m > 1e-9 * top).collect();
+    let lo = scales.iter().cloned().fold(f64::INFINITY, f64::min);
+    let hi = scales.iter().cloned().fold(0.0, f64::max);
+    let (lo, hi) = if scales.is_empty() {
         (0.1, 10.0)
     } else {
         (lo / 100.0, hi * 100.0)
@@ -98,8 +103,10 @@ fn grid(a: &StateSpace, b: &StateSpace) -> NumResult<Vec<f64>> {
     let mut w: Vec<f64> = (0..count)
         .map(|k| lo * (hi / lo).powf(k as f64 / (count - 1) as f64))
         .collect();
-    w.extend(mags.iter().filter(|&&m| m < nyquist).map(|m| m * 1.0001));
-    w.push(0.0);
+    w.extend(scales.iter().filter(|&&m| m < nyquist).map(|m| m * 1.0001));
+    if !integrator {
+        w.push(0.0);
+    }
     w.sort_by(|x, y| x.partial_cmp(y).unwrap_or(std::cmp::Ordering::Equal));
     Ok(w)
 }
@@ -168,20 +175,32 @@ pub fn equivalence(a: &StateSpace, b: &StateSpace) -> NumResult<Equivalence> {
         ga.push(ea.at_frequency(x));
         gb.push(eb.at_frequency(x));
     }
-    let gscale = ga
+    // Per-point relative error, with a floor at 1e-6 of the typical response size so that
+    // deep notches do not count as disagreement, and points within a hair of a pole
+    // (response beyond 1e8 times typical) skipped: there the response of either model is
+    // dominated by the pole's last-digit position.
+    let mut norms: Vec<f64> = ga
         .iter()
-        .chain(gb.iter())
         .map(|g| g.norm())
         .filter(|v| v.is_finite())
-        .fold(0.0, f64::max);
+        .collect();
+    norms.sort_by(|x, y| x.partial_cmp(y).unwrap_or(std::cmp::Ordering::Equal));
+    let typical = norms.get(norms.len() * 9 / 10).copied().unwrap_or(0.0);
     let mut frequency_error = 0.0f64;
     let mut worst_w = 0.0;
     for ((x, p), q) in w.iter().zip(&ga).zip(&gb) {
-        let d = (p - q).norm();
-        if !d.is_finite() {
-            continue; // a pole exactly on the grid
+        let (np, nq) = (p.norm(), q.norm());
+        if !(np.is_finite() && nq.is_finite()) || np.max(nq) > 1e8 * typical.max(f64::MIN_POSITIVE)
+        {
+            continue;
         }
-        let e = if gscale > 0.0 { d / gscale } else { 0.0 };
+        let floor = 1e-6 * typical;
+        let denom = np.max(nq).max(floor);
+        let e = if denom > 0.0 {
+            (p - q).norm() / denom
+        } else {
+            0.0
+        };
         if e > frequency_error {
             frequency_error = e;
             worst_w = *x;
