@@ -30,7 +30,7 @@ fn transfer_functions_match_scipy_ss2tf() {
         // form may cancel factors that ss2tf's common denominator keeps.
         for (j, per_input) in nums.iter().enumerate() {
             let rows = fx::matrix(per_input);
-            for i in 0..rows.nrows() {
+            for (i, grid_row) in grid.iter().enumerate().take(rows.nrows()) {
                 let num: Vec<f64> = rows.row(i).iter().copied().collect();
                 for s in [
                     Complex::new(0.0, 0.7),
@@ -38,7 +38,7 @@ fn transfer_functions_match_scipy_ss2tf() {
                     Complex::new(-0.2, 5.0),
                 ] {
                     let want = horner(&num, s) / horner(&den, s);
-                    let got = grid[i][j].eval(s);
+                    let got = grid_row[j].eval(s);
                     let err = (got - want).norm();
                     assert!(
                         err <= 1e-9 * (1.0 + want.norm()),
