@@ -105,3 +105,40 @@ pub fn warn(ctx: &NativeCallContext, message: impl Into<String>) {
 pub fn style(ctx: &NativeCallContext) -> Style {
     of(ctx).map(|s| s.style()).unwrap_or_default()
 }
+
+/// Reads a text file for built-in `fname`, judged by the session's sandbox.
+pub fn read_text(
+    ctx: &NativeCallContext,
+    fname: &str,
+    path: &str,
+) -> Result<String, Box<rhai::EvalAltResult>> {
+    use crate::script::convert::fail;
+    let Some(st) = of(ctx) else {
+        return Err(fail(format!("{fname}: no session")));
+    };
+    let real = st
+        .sandbox
+        .read_path(path)
+        .map_err(|e| fail(format!("{fname}: {e}")))?;
+    std::fs::read_to_string(&real).map_err(|e| fail(format!("{fname}: cannot read {path}: {e}")))
+}
+
+/// Writes a file for built-in `fname`, judged by the session's sandbox, through a
+/// temporary file and a rename.
+pub fn write_bytes(
+    ctx: &NativeCallContext,
+    fname: &str,
+    path: &str,
+    bytes: &[u8],
+) -> Result<(), Box<rhai::EvalAltResult>> {
+    use crate::script::convert::fail;
+    let Some(st) = of(ctx) else {
+        return Err(fail(format!("{fname}: no session")));
+    };
+    let real = st
+        .sandbox
+        .write_path(path)
+        .map_err(|e| fail(format!("{fname}: {e}")))?;
+    crate::sandbox::write_atomic(&real, bytes)
+        .map_err(|e| fail(format!("{fname}: cannot write {path}: {e}")))
+}
