@@ -154,3 +154,34 @@ fn repl_piped_error_sets_exit_code_and_continues() {
     assert!(text(&out.stdout).contains("42"));
     assert!(text(&out.stderr).contains("error:"));
 }
+
+#[test]
+fn every_family_is_listed_by_help() {
+    let out = bin().arg("help").output().expect("run");
+    let s = text(&out.stdout);
+    for name in [
+        "state_space",
+        "modal_realization",
+        "equivalence",
+        "read_csv",
+        "db",
+    ] {
+        assert!(s.contains(name), "help lists {name}: {s}");
+    }
+}
+
+#[test]
+fn print_of_a_model_uses_its_display() {
+    let d = temp_dir("printmodel");
+    let out = run_file(
+        &d,
+        "m.sbook",
+        "print(state_space([[-1]], [[1]], [[1]], 0));\n",
+        &["run"],
+    );
+    assert!(
+        text(&out.stdout).contains("state-space model · continuous"),
+        "{}",
+        text(&out.stdout)
+    );
+}

@@ -72,6 +72,8 @@ fn register_display(e: &mut Engine, state: &Arc<SessionState>) {
     disp!(Matrix);
     disp!(Complex);
     disp!(ComplexMatrix);
+    disp!(super::types::System);
+    disp!(super::types::TransferFunction);
 }
 
 /// Resolves `import "name" as m;` to `name.sbook` inside the sandbox.

@@ -19,8 +19,10 @@ use rhai::Dynamic;
 pub const DOC_TABLES: &[&[Doc]] = &[
     arith::DOCS,
     complex::DOCS,
+    files::DOCS,
     matrix::DOCS,
     linalg::DOCS,
+    lti::DOCS,
     output::DOCS,
     plot::DOCS,
 ];
