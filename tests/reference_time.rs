@@ -11,6 +11,7 @@ mod common;
 
 use common::fixtures::{self, Tolerance};
 use nalgebra::DMatrix;
+use serde_json::Value;
 use statebook::numeric::freq::response::frequency_response;
 use statebook::numeric::lti::system::StateSpace;
 use statebook::numeric::time::discretize::{discretize, Method};
@@ -18,7 +19,6 @@ use statebook::numeric::time::ode::{integrate_ode, OdeMethod, OdeOptions};
 use statebook::numeric::time::simulate::{
     free_response, impulse_response, simulate, step_response, Hold, Horizon, SimulationOptions,
 };
-use serde_json::Value;
 
 fn system(inputs: &Value) -> StateSpace {
     let m = fixtures::model(inputs);
@@ -65,8 +65,13 @@ fn discretize_tustin_mimo() {
 #[test]
 fn discretize_tustin_prewarp_mimo() {
     let fx = fixtures::load("time");
-    let w0 = fixtures::f64_of(&fixtures::case(&fx, "discretize_tustin_prewarp_mimo")["inputs"]["prewarp"]);
-    check_discretize("discretize_tustin_prewarp_mimo", Method::Tustin { prewarp: Some(w0) });
+    let w0 = fixtures::f64_of(
+        &fixtures::case(&fx, "discretize_tustin_prewarp_mimo")["inputs"]["prewarp"],
+    );
+    check_discretize(
+        "discretize_tustin_prewarp_mimo",
+        Method::Tustin { prewarp: Some(w0) },
+    );
 }
 
 #[test]
@@ -137,9 +142,17 @@ fn check_simulation(name: &str, hold: Option<Hold>) {
     )
     .unwrap_or_else(|e| panic!("{name}: {e}"));
     let tol = fixtures::tolerance(case);
-    tol.assert_matrix_close(&r.y, &fixtures::matrix(&case["expected"]["y"]), &format!("{name} y"));
+    tol.assert_matrix_close(
+        &r.y,
+        &fixtures::matrix(&case["expected"]["y"]),
+        &format!("{name} y"),
+    );
     let x = r.x.expect("states kept");
-    tol.assert_matrix_close(&x, &fixtures::matrix(&case["expected"]["x"]), &format!("{name} x"));
+    tol.assert_matrix_close(
+        &x,
+        &fixtures::matrix(&case["expected"]["x"]),
+        &format!("{name} x"),
+    );
 }
 
 #[test]
@@ -209,7 +222,8 @@ fn check_ode(name: &str, method: OdeMethod) {
     } else {
         van_der_pol
     };
-    let sol = integrate_ode(&mut f, &x0, t_final, &options).unwrap_or_else(|e| panic!("{name}: {e}"));
+    let sol =
+        integrate_ode(&mut f, &x0, t_final, &options).unwrap_or_else(|e| panic!("{name}: {e}"));
     let got = DMatrix::from_fn(sol.t.len(), x0.len(), |r, c| sol.x[r][c]);
     fixtures::tolerance(case).assert_matrix_close(
         &got,
@@ -267,7 +281,10 @@ fn first_order_closed_forms() {
     let imp = &impulse_response(&s, h).expect("impulse")[0];
     for (n, &t) in imp.t.iter().enumerate() {
         let want = k / tau * (-t / tau).exp();
-        assert!((imp.y[(n, 0)] - want).abs() < 1e-14 * want.max(1.0), "t = {t}");
+        assert!(
+            (imp.y[(n, 0)] - want).abs() < 1e-14 * want.max(1.0),
+            "t = {t}"
+        );
     }
 }
 
@@ -291,7 +308,7 @@ fn discrete_impulse_is_the_markov_sequence() {
     )
     .expect("impulse")[0];
     let markov = s.markov_parameters(6);
-    for k in 0..6 {
-        assert!((r.y[(k, 0)] - markov[k][(0, 0)]).abs() < 1e-15, "k = {k}");
+    for (k, mk) in markov.iter().enumerate() {
+        assert!((r.y[(k, 0)] - mk[(0, 0)]).abs() < 1e-15, "k = {k}");
     }
 }

@@ -48,7 +48,12 @@ impl Figure {
         output_names: &[String],
         levels: &[Option<(f64, String)>],
     ) -> Figure {
-        let panels_needed = curves.iter().map(|c| c.outputs.len()).max().unwrap_or(0).max(1);
+        let panels_needed = curves
+            .iter()
+            .map(|c| c.outputs.len())
+            .max()
+            .unwrap_or(0)
+            .max(1);
         let legend = curves.len() > 1 && curves.iter().any(|c| c.label.is_some());
         let mut panels = Vec::with_capacity(panels_needed);
         for i in 0..panels_needed {

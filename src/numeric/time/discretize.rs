@@ -76,7 +76,11 @@ pub fn hold_terms(
     let n = check::finite_square("A", a)?;
     check::finite("B", b)?;
     if b.nrows() != n {
-        return Err(NumError::shape("B", format!("{n} rows"), check::shape_of(b)));
+        return Err(NumError::shape(
+            "B",
+            format!("{n} rows"),
+            check::shape_of(b),
+        ));
     }
     let m = b.ncols();
     let size = n + 2 * m;
@@ -246,7 +250,10 @@ fn split_roots(roots: &[Complex<f64>], at: Complex<f64>, tol: f64) -> (usize, Ve
 
 /// Π (at − rᵢ), real for a conjugate-closed list.
 fn product_at(roots: &[Complex<f64>], at: Complex<f64>) -> f64 {
-    roots.iter().fold(Complex::new(1.0, 0.0), |acc, r| acc * (at - r)).re
+    roots
+        .iter()
+        .fold(Complex::new(1.0, 0.0), |acc, r| acc * (at - r))
+        .re
 }
 
 fn matched(sys: &StateSpace, dt: f64) -> NumResult<StateSpace> {
@@ -296,7 +303,10 @@ fn matched(sys: &StateSpace, dt: f64) -> NumResult<StateSpace> {
     let q = zero_origin as i32 - pole_origin as i32;
     let g0 = gain * product_at(&zeros_rest, origin) / product_at(&poles_rest, origin);
     let mut zd: Vec<Complex<f64>> = zeros.iter().map(|z| (z * dt).exp()).collect();
-    zd.extend(std::iter::repeat_n(Complex::new(-1.0, 0.0), n - zeros.len()));
+    zd.extend(std::iter::repeat_n(
+        Complex::new(-1.0, 0.0),
+        n - zeros.len(),
+    ));
     let pd: Vec<Complex<f64>> = poles.iter().map(|p| (p * dt).exp()).collect();
     let (_, zd_rest) = split_roots(&zd, one, tol * dt);
     let (_, pd_rest) = split_roots(&pd, one, tol * dt);
@@ -308,10 +318,7 @@ fn matched(sys: &StateSpace, dt: f64) -> NumResult<StateSpace> {
             "the low-frequency gain cannot be matched (a pole maps onto a zero)",
         ));
     }
-    let num: Vec<f64> = polynomial_from_roots(&zd)?
-        .iter()
-        .map(|c| c * kd)
-        .collect();
+    let num: Vec<f64> = polynomial_from_roots(&zd)?.iter().map(|c| c * kd).collect();
     let den = polynomial_from_roots(&pd)?;
     from_transfer_function(&TransferFunction::new(&num, &den, dt)?)
 }
@@ -421,8 +428,14 @@ mod tests {
         )
         .unwrap();
         let e = to_continuous(&s).unwrap_err().to_string();
-        assert!(e.contains("-0.5") && e.contains("negative real axis"), "{e}");
-        let z = StateSpace { a: DMatrix::zeros(1, 1), ..s };
+        assert!(
+            e.contains("-0.5") && e.contains("negative real axis"),
+            "{e}"
+        );
+        let z = StateSpace {
+            a: DMatrix::zeros(1, 1),
+            ..s
+        };
         let e = to_continuous(&z).unwrap_err().to_string();
         assert!(e.contains("zero"), "{e}");
     }

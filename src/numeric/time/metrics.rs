@@ -46,7 +46,11 @@ fn crossing(t: &[f64], r: &[f64], level: f64, from: usize) -> Option<(f64, usize
                 return Some((t[0], 0));
             }
             let (r0, r1) = (r[k - 1], r[k]);
-            let frac = if r1 > r0 { (level - r0) / (r1 - r0) } else { 1.0 };
+            let frac = if r1 > r0 {
+                (level - r0) / (r1 - r0)
+            } else {
+                1.0
+            };
             return Some((t[k - 1] + frac.clamp(0.0, 1.0) * (t[k] - t[k - 1]), k));
         }
     }
@@ -87,10 +91,11 @@ pub fn step_metrics_of(t: &[f64], y: &[f64], final_value: f64) -> NumResult<Step
     let nan = f64::NAN;
     let scale = final_value.abs().max(y0.abs()).max(f64::MIN_POSITIVE);
     if change.abs() <= 1e-12 * scale {
-        let (k, peak) = y
-            .iter()
-            .enumerate()
-            .fold((0, y0), |acc, (k, &v)| if v.abs() > acc.1.abs() { (k, v) } else { acc });
+        let (k, peak) =
+            y.iter().enumerate().fold(
+                (0, y0),
+                |acc, (k, &v)| if v.abs() > acc.1.abs() { (k, v) } else { acc },
+            );
         return Ok(StepMetrics {
             rise_time: nan,
             settling_time: nan,
@@ -116,14 +121,19 @@ pub fn step_metrics_of(t: &[f64], y: &[f64], final_value: f64) -> NumResult<Step
         Some(k) if k + 1 == dev.len() => nan,
         Some(k) => {
             let (e0, e1) = (dev[k], dev[k + 1]);
-            let frac = if e0 > e1 { (e0 - band) / (e0 - e1) } else { 0.0 };
+            let frac = if e0 > e1 {
+                (e0 - band) / (e0 - e1)
+            } else {
+                0.0
+            };
             t[k] + frac.clamp(0.0, 1.0) * (t[k + 1] - t[k]) - t[0]
         }
     };
-    let (kp, rp) = r
-        .iter()
-        .enumerate()
-        .fold((0, f64::NEG_INFINITY), |acc, (k, &v)| if v > acc.1 { (k, v) } else { acc });
+    let (kp, rp) =
+        r.iter().enumerate().fold(
+            (0, f64::NEG_INFINITY),
+            |acc, (k, &v)| if v > acc.1 { (k, v) } else { acc },
+        );
     let (mut peak_r, mut peak_time) = (rp, t[kp]);
     if kp > 0 && kp + 1 < r.len() {
         // Vertex of the parabola through the three samples around the largest one.
@@ -166,7 +176,10 @@ pub struct ChannelMetrics {
 ///
 /// Errors: a model that is not stable (its step response does not settle: the message
 /// names the offending pole) — metrics of such a response are meaningless.
-pub fn model_step_metrics(sys: &StateSpace, t_final: Option<f64>) -> NumResult<Vec<ChannelMetrics>> {
+pub fn model_step_metrics(
+    sys: &StateSpace,
+    t_final: Option<f64>,
+) -> NumResult<Vec<ChannelMetrics>> {
     let p = poles(sys)?;
     let bad = p.iter().find(|z| {
         if sys.is_discrete() {
@@ -229,8 +242,16 @@ mod tests {
             let root = (1.0f64 - zeta * zeta).sqrt();
             let os = 100.0 * (-zeta * std::f64::consts::PI / root).exp();
             let tp = std::f64::consts::PI / (wn * root);
-            assert!((m.overshoot - os).abs() < 1e-6 * os, "{} vs {os}", m.overshoot);
-            assert!((m.peak_time - tp).abs() < 1e-6 * tp, "{} vs {tp}", m.peak_time);
+            assert!(
+                (m.overshoot - os).abs() < 1e-6 * os,
+                "{} vs {os}",
+                m.overshoot
+            );
+            assert!(
+                (m.peak_time - tp).abs() < 1e-6 * tp,
+                "{} vs {tp}",
+                m.peak_time
+            );
             assert!((m.final_value - 1.0).abs() < 1e-12);
         }
     }
@@ -248,8 +269,16 @@ mod tests {
         )
         .unwrap();
         let m = model_step_metrics(&s, None).unwrap()[0].metrics;
-        assert!((m.rise_time - tau * 9f64.ln()).abs() < 1e-6, "{}", m.rise_time);
-        assert!((m.settling_time - tau * 50f64.ln()).abs() < 1e-6, "{}", m.settling_time);
+        assert!(
+            (m.rise_time - tau * 9f64.ln()).abs() < 1e-6,
+            "{}",
+            m.rise_time
+        );
+        assert!(
+            (m.settling_time - tau * 50f64.ln()).abs() < 1e-6,
+            "{}",
+            m.settling_time
+        );
         assert_eq!(m.overshoot, 0.0);
         assert!((m.final_value - 2.0).abs() < 1e-12);
     }

@@ -75,10 +75,7 @@ pub fn uniform_step(t: &[f64]) -> NumResult<f64> {
         return Err(bad(format!("t[{k}] is {}, expected a finite time", t[k])));
     }
     if t[0] < 0.0 {
-        return Err(bad(format!(
-            "expected times ≥ 0, found t[0] = {}",
-            t[0]
-        )));
+        return Err(bad(format!("expected times ≥ 0, found t[0] = {}", t[0])));
     }
     if t.len() == 1 {
         return Ok(0.0);
@@ -254,9 +251,7 @@ pub fn simulate(
     if u.nrows() != samples || u.ncols() != m {
         return Err(NumError::shape(
             "u",
-            format!(
-                "{samples}×{m} (one row per sample of t, one column per input)"
-            ),
+            format!("{samples}×{m} (one row per sample of t, one column per input)"),
             check::shape_of(u),
         ));
     }
@@ -628,7 +623,10 @@ mod tests {
         )
         .unwrap();
         let h = auto_horizon(&osc).unwrap();
-        assert!((h.t_final - 3.0 * std::f64::consts::PI).abs() < 1e-9, "{h:?}");
+        assert!(
+            (h.t_final - 3.0 * std::f64::consts::PI).abs() < 1e-9,
+            "{h:?}"
+        );
         assert!(horizon_with(&osc, -1.0, false).is_err());
     }
 }

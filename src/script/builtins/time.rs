@@ -341,8 +341,12 @@ fn step_metrics(v: &Dynamic, t_final: Option<&Dynamic>) -> Rr<Dynamic> {
         }
         return Ok(single(maps));
     }
-    let sys = to_system(v, f, "sys_or_response")
-        .map_err(|_| fail(format!("{f}: expected a System, TransferFunction or Response, found {}", type_name(v))))?;
+    let sys = to_system(v, f, "sys_or_response").map_err(|_| {
+        fail(format!(
+            "{f}: expected a System, TransferFunction or Response, found {}",
+            type_name(v)
+        ))
+    })?;
     let tf = t_final.map(|x| to_f64(x, f, "t_final")).transpose()?;
     let ch = metrics::model_step_metrics(&sys, tf).map_err(num(f))?;
     let siso = sys.inputs() == 1 && sys.outputs() == 1;
@@ -360,7 +364,9 @@ fn call_vector(
     fp: &FnPtr,
     args: impl rhai::FuncArgs,
 ) -> Result<Vec<f64>, String> {
-    let v: Dynamic = fp.call_within_context(ctx, args).map_err(|e| e.to_string())?;
+    let v: Dynamic = fp
+        .call_within_context(ctx, args)
+        .map_err(|e| e.to_string())?;
     if let Some(x) = v.clone().try_cast::<FLOAT>() {
         return Ok(vec![x]);
     }
@@ -374,7 +380,12 @@ fn call_vector(
             .map(|(k, x)| {
                 x.as_float()
                     .or_else(|_| x.as_int().map(|i| i as f64))
-                    .map_err(|_| format!("value {k} of the returned array is {}, expected a number", type_name(x)))
+                    .map_err(|_| {
+                        format!(
+                            "value {k} of the returned array is {}, expected a number",
+                            type_name(x)
+                        )
+                    })
             })
             .collect();
     }
@@ -395,8 +406,7 @@ fn function_arg(v: &Dynamic, fname: &str, arg: &str) -> Rr<FnPtr> {
     }
     if v.is_string() {
         let name = v.to_string();
-        return FnPtr::new(name.as_str())
-            .map_err(|e| fail(format!("{fname}: {arg}: {e}")));
+        return FnPtr::new(name.as_str()).map_err(|e| fail(format!("{fname}: {arg}: {e}")));
     }
     Err(fail(format!(
         "{fname}: {arg} must be a function (a closure |t, x| … or Fn(\"name\")), found {}",
@@ -576,7 +586,9 @@ pub fn register(engine: &mut Engine) {
     });
 
     engine.register_fn("step_response", |s: Dynamic| step(&s, None));
-    engine.register_fn("step_response", |s: Dynamic, tf: Dynamic| step(&s, Some(&tf)));
+    engine.register_fn("step_response", |s: Dynamic, tf: Dynamic| {
+        step(&s, Some(&tf))
+    });
     engine.register_fn("impulse_response", |ctx: NativeCallContext, s: Dynamic| {
         impulse(&ctx, &s, None)
     });
@@ -584,7 +596,9 @@ pub fn register(engine: &mut Engine) {
         "impulse_response",
         |ctx: NativeCallContext, s: Dynamic, tf: Dynamic| impulse(&ctx, &s, Some(&tf)),
     );
-    engine.register_fn("free_response", |s: Dynamic, x0: Dynamic| free(&s, &x0, None));
+    engine.register_fn("free_response", |s: Dynamic, x0: Dynamic| {
+        free(&s, &x0, None)
+    });
     engine.register_fn("free_response", |s: Dynamic, x0: Dynamic, tf: Dynamic| {
         free(&s, &x0, Some(&tf))
     });
