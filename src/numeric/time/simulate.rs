@@ -154,9 +154,102 @@ impl Stepper {
         })
     }
 
-    /// Runs the recurrence over `samples` steps; `u(k, l)` reads input l at sample k from
-    /// the column-major N×m slice.
+    /// Runs the recurrence over `samples` steps on the column-major N×m input slice `u`:
+    /// a kernel with the state size fixed at compile time for n ≤ 12 (the state stays in
+    /// registers and the products unroll), the general loop otherwise.
     fn run(
+        &self,
+        x0: &[f64],
+        u: &[f64],
+        samples: usize,
+        keep_states: bool,
+    ) -> (Vec<f64>, Option<Vec<f64>>) {
+        macro_rules! fixed {
+            ($($k:literal)*) => {
+                match self.n {
+                    $($k => self.run_fixed::<$k>(x0, u, samples, keep_states),)*
+                    _ => self.run_general(x0, u, samples, keep_states),
+                }
+            };
+        }
+        fixed!(1 2 3 4 5 6 7 8 9 10 11 12)
+    }
+
+    /// [`Stepper::run`] for a state of exactly `N` entries.
+    fn run_fixed<const N: usize>(
+        &self,
+        x0: &[f64],
+        u: &[f64],
+        samples: usize,
+        keep_states: bool,
+    ) -> (Vec<f64>, Option<Vec<f64>>) {
+        let (m, p) = (self.m, self.p);
+        let columns = |flat: &[f64]| -> Vec<[f64; N]> {
+            flat.chunks_exact(N)
+                .map(|c| {
+                    let mut a = [0.0; N];
+                    a.copy_from_slice(c);
+                    a
+                })
+                .collect()
+        };
+        let phi = columns(&self.phi);
+        let g0 = columns(&self.g0);
+        let g1 = self.g1.as_deref().map(columns);
+        // Rows of C (p × N), for the output dot products.
+        let c_rows: Vec<[f64; N]> = (0..p)
+            .map(|i| std::array::from_fn(|j| self.c[j * p + i]))
+            .collect();
+        let mut y = vec![0.0; samples * p];
+        let mut xs = keep_states.then(|| vec![0.0; samples * N]);
+        let mut x = [0.0; N];
+        x.copy_from_slice(x0);
+        for k in 0..samples {
+            for (i, row) in c_rows.iter().enumerate() {
+                let mut s = 0.0;
+                for j in 0..N {
+                    s += row[j] * x[j];
+                }
+                for l in 0..m {
+                    s += self.d[l * p + i] * u[l * samples + k];
+                }
+                y[i * samples + k] = s;
+            }
+            if let Some(xs) = xs.as_mut() {
+                for (j, &v) in x.iter().enumerate() {
+                    xs[j * samples + k] = v;
+                }
+            }
+            if k + 1 == samples {
+                break;
+            }
+            let mut xn = [0.0; N];
+            for (col, &xj) in phi.iter().zip(&x) {
+                for i in 0..N {
+                    xn[i] += col[i] * xj;
+                }
+            }
+            for (l, col) in g0.iter().enumerate() {
+                let ul = u[l * samples + k];
+                for i in 0..N {
+                    xn[i] += col[i] * ul;
+                }
+            }
+            if let Some(g1) = &g1 {
+                for (l, col) in g1.iter().enumerate() {
+                    let ul = u[l * samples + k + 1];
+                    for i in 0..N {
+                        xn[i] += col[i] * ul;
+                    }
+                }
+            }
+            x = xn;
+        }
+        (y, xs)
+    }
+
+    /// [`Stepper::run`] for any state size.
+    fn run_general(
         &self,
         x0: &[f64],
         u: &[f64],
@@ -565,6 +658,38 @@ mod tests {
         .unwrap();
         assert!((z.y[(10, 0)] - 0.45).abs() < 1e-14);
         assert!(z.x.is_none());
+    }
+
+    #[test]
+    fn fixed_and_general_kernels_agree() {
+        // Same recurrence, two code paths: the results must agree to rounding.
+        let n = 10;
+        let mut seed = 3u64;
+        let mut next = || {
+            seed = seed.wrapping_mul(6364136223846793005).wrapping_add(1);
+            ((seed >> 11) as f64 / (1u64 << 53) as f64) - 0.5
+        };
+        let a = DMatrix::from_fn(n, n, |i, j| next() - if i == j { 2.0 } else { 0.0 });
+        let b = DMatrix::from_fn(n, 2, |_, _| next());
+        let c = DMatrix::from_fn(3, n, |_, _| next());
+        let d = DMatrix::from_fn(3, 2, |_, _| next());
+        let s = StateSpace::new(a, b, c, d, 0.0).unwrap();
+        let samples = 50;
+        let u: Vec<f64> = (0..samples * 2).map(|k| (k as f64 * 0.3).sin()).collect();
+        let x0: Vec<f64> = (0..n).map(|k| k as f64 * 0.1).collect();
+        for hold in [Hold::Zoh, Hold::Linear] {
+            let st = Stepper::new(&s, 0.05, Some(hold)).unwrap();
+            let (y1, x1) = st.run_fixed::<10>(&x0, &u, samples, true);
+            let (y2, x2) = st.run_general(&x0, &u, samples, true);
+            let diff = |a: &[f64], b: &[f64]| {
+                a.iter()
+                    .zip(b)
+                    .map(|(p, q)| (p - q).abs())
+                    .fold(0.0, f64::max)
+            };
+            assert!(diff(&y1, &y2) < 1e-13);
+            assert!(diff(&x1.unwrap(), &x2.unwrap()) < 1e-13);
+        }
     }
 
     #[test]
