@@ -27,6 +27,7 @@ mod geom;
 mod kinds;
 mod layout;
 mod render;
+mod response;
 pub mod theme;
 pub mod ticks;
 
@@ -38,6 +39,7 @@ pub use figure::{
     DEFAULT_WIDTH,
 };
 pub use kinds::FrequencyCurve;
+pub use response::ResponseCurve;
 
 /// Smallest and largest accepted figure width or height, in CSS pixels.
 pub const SIZE_LIMITS: (u32, u32) = (100, 4000);

@@ -35,6 +35,8 @@ pub fn type_name(v: &Dynamic) -> String {
         "System".into()
     } else if v.is::<super::types::TransferFunction>() {
         "TransferFunction".into()
+    } else if v.is::<super::types::Response>() {
+        "Response".into()
     } else if v.is::<super::types::Figure>() {
         "Figure".into()
     } else if v.is::<Complex>() {

@@ -49,6 +49,7 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::output::register(&mut e, state);
     builtins::plot::register(&mut e);
     builtins::files::register(&mut e);
+    builtins::time::register(&mut e);
     register_display(&mut e, state);
     super::stdlib::load(&mut e);
     e

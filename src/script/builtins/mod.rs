@@ -9,6 +9,7 @@ pub mod lti;
 pub mod matrix;
 pub mod output;
 pub mod plot;
+pub mod time;
 
 use super::docs::Doc;
 use crate::display::Style;
@@ -25,6 +26,7 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     lti::DOCS,
     output::DOCS,
     plot::DOCS,
+    time::DOCS,
 ];
 
 /// Display of value types defined by the domain bindings (models, responses, figures).
@@ -32,6 +34,9 @@ pub fn display_extra(v: &Dynamic, style: Style) -> Option<String> {
     use crate::script::types::{Figure, System, TransferFunction};
     if let Some(f) = v.read_lock::<Figure>() {
         return Some(plot::describe(&f));
+    }
+    if let Some(r) = v.read_lock::<crate::script::types::Response>() {
+        return Some(r.summary());
     }
     if let Some(s) = v.read_lock::<System>() {
         let s = &s.0;
@@ -63,6 +68,9 @@ pub fn json_extra(v: &Dynamic) -> Option<serde_json::Value> {
             "A": matrix(&s.a), "B": matrix(&s.b), "C": matrix(&s.c), "D": matrix(&s.d),
             "dt": float(s.dt),
         }));
+    }
+    if let Some(r) = v.read_lock::<crate::script::types::Response>() {
+        return Some(time::response_json(&r));
     }
     if let Some(t) = v.read_lock::<TransferFunction>() {
         let list = |c: &[f64]| serde_json::Value::Array(c.iter().map(|&x| float(x)).collect());

@@ -4,7 +4,9 @@
 mod complex;
 mod matrix;
 mod model;
+mod response;
 
 pub use complex::{Complex, ComplexMatrix};
 pub use matrix::Matrix;
 pub use model::{Figure, System, TransferFunction};
+pub use response::Response;

@@ -1,0 +1,156 @@
+//! `plot_response` and `plot_step`: time-response figures (the drawing is
+//! `crate::plot::Figure::time_response`).
+
+use super::sim;
+use crate::numeric::lti::properties::dc_gain;
+use crate::numeric::lti::system::StateSpace;
+use crate::plot::{Figure as PlotFigure, ResponseCurve};
+use crate::script::builtins::plot::options;
+use crate::script::convert::{fail, num, to_system, type_name, Rr};
+use crate::script::types::{Figure, Response};
+use rhai::{Array, Dynamic, Engine, Map};
+
+fn curve(r: &Response, label: Option<String>) -> ResponseCurve {
+    let d = &r.data;
+    ResponseCurve {
+        t: d.t.clone(),
+        outputs: (0..d.y.ncols())
+            .map(|i| d.y.column(i).iter().copied().collect())
+            .collect(),
+        label,
+        stairs: r.dt > 0.0,
+    }
+}
+
+fn responses_of(v: &Dynamic) -> Rr<Vec<Response>> {
+    if let Some(r) = v.read_lock::<Response>() {
+        return Ok(vec![r.clone()]);
+    }
+    let Some(a) = v.read_lock::<Array>() else {
+        return Err(fail(format!(
+            "plot_response: expected a Response or an array of them, found {}",
+            type_name(v)
+        )));
+    };
+    if a.is_empty() {
+        return Err(fail("plot_response: the array of responses is empty"));
+    }
+    a.iter()
+        .enumerate()
+        .map(|(k, x)| {
+            x.read_lock::<Response>().map(|r| r.clone()).ok_or_else(|| {
+                fail(format!(
+                    "plot_response: element {k} must be a Response, found {}",
+                    type_name(x)
+                ))
+            })
+        })
+        .collect()
+}
+
+fn plot_response(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
+    let rs = responses_of(v)?;
+    let many = rs.len() > 1;
+    let curves: Vec<ResponseCurve> = rs
+        .iter()
+        .enumerate()
+        .map(|(k, r)| {
+            let label = r
+                .label
+                .clone()
+                .or_else(|| many.then(|| format!("response {k}")));
+            curve(r, label)
+        })
+        .collect();
+    let names = rs.iter().map(|r| &r.outputs).max_by_key(|n| n.len());
+    let mut fig = PlotFigure::time_response(&curves, names.map_or(&[][..], |v| &v[..]), &[]);
+    if let Some(m) = o {
+        fig.apply(&options(m, "plot_response")?);
+    }
+    Ok(Figure(fig))
+}
+
+fn systems_of(v: &Dynamic) -> Rr<Vec<StateSpace>> {
+    if let Some(a) = v.read_lock::<Array>() {
+        if a.is_empty() {
+            return Err(fail("plot_step: the array of models is empty"));
+        }
+        return a
+            .iter()
+            .enumerate()
+            .map(|(k, s)| to_system(s, "plot_step", &format!("models[{k}]")))
+            .collect();
+    }
+    Ok(vec![to_system(v, "plot_step", "sys")?])
+}
+
+fn plot_step(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
+    let f = "plot_step";
+    let systems = systems_of(v)?;
+    // One horizon for all: the longest automatic one, so the curves share the axis.
+    let mut t_final: f64 = 0.0;
+    for s in &systems {
+        t_final = t_final.max(sim::auto_horizon(s).map_err(num(f))?.t_final);
+    }
+    let many_systems = systems.len() > 1;
+    let mut curves = Vec::new();
+    for (k, s) in systems.iter().enumerate() {
+        let h = sim::horizon_with(s, t_final, false).map_err(num(f))?;
+        let rs = sim::step_response(s, h).map_err(num(f))?;
+        let many_inputs = rs.len() > 1;
+        for (j, data) in rs.into_iter().enumerate() {
+            let input = s
+                .names
+                .inputs
+                .get(j)
+                .cloned()
+                .unwrap_or_else(|| format!("input {j}"));
+            let label = match (many_systems, many_inputs) {
+                (true, true) => Some(format!("model {k}, {input}")),
+                (true, false) => Some(format!("model {k}")),
+                (false, true) => Some(input),
+                (false, false) => None,
+            };
+            let r = Response {
+                data,
+                kind: "step response".into(),
+                outputs: s.names.outputs.clone(),
+                label: None,
+                dt: s.dt,
+            };
+            curves.push(curve(&r, label));
+        }
+    }
+    let names = systems
+        .iter()
+        .map(|s| &s.names.outputs)
+        .max_by_key(|n| n.len())
+        .cloned()
+        .unwrap_or_default();
+    // A single-input model alone gets its final value drawn in each output's panel.
+    let levels: Vec<Option<(f64, String)>> = match systems.as_slice() {
+        [s] if s.inputs() == 1 => {
+            let g = dc_gain(s).map_err(num(f))?;
+            (0..s.outputs())
+                .map(|i| Some((g[(i, 0)], "final value".to_string())))
+                .collect()
+        }
+        _ => Vec::new(),
+    };
+    let mut fig = PlotFigure::time_response(&curves, &names, &levels);
+    fig.title = Some("step response".into());
+    if let Some(m) = o {
+        fig.apply(&options(m, f)?);
+    }
+    Ok(Figure(fig))
+}
+
+/// Registers the time-response plots.
+pub fn register(engine: &mut Engine) {
+    engine.register_fn("plot_response", |v: Dynamic| plot_response(&v, None));
+    engine.register_fn("plot_response", |v: Dynamic, o: Map| {
+        plot_response(&v, Some(&o))
+    });
+    engine.register_fn("plot_step", |v: Dynamic| plot_step(&v, None));
+    engine.register_fn("plot_step", |v: Dynamic, o: Map| plot_step(&v, Some(&o)));
+}
