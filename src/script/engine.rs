@@ -48,6 +48,9 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::lti::register(&mut e);
     builtins::output::register(&mut e, state);
     builtins::plot::register(&mut e);
+    builtins::freq::register(&mut e);
+    builtins::design::register(&mut e);
+    builtins::model_plots::register(&mut e);
     register_display(&mut e, state);
     super::stdlib::load(&mut e);
     e

@@ -3,9 +3,12 @@
 
 pub mod arith;
 pub mod complex;
+pub mod design;
+pub mod freq;
 pub mod linalg;
 pub mod lti;
 pub mod matrix;
+pub mod model_plots;
 pub mod output;
 pub mod plot;
 
@@ -22,6 +25,10 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     linalg::DOCS,
     output::DOCS,
     plot::DOCS,
+    lti::DOCS,
+    freq::DOCS,
+    design::DOCS,
+    model_plots::DOCS,
 ];
 
 /// Display of value types defined by the domain bindings (models, responses, figures).
