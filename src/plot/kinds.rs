@@ -167,10 +167,14 @@ impl Figure {
 
     /// Root locus: each branch `(re, im)` as a line (NaN entries break it), the open-loop
     /// poles as crosses where the branches start and the zeros as rings where they end.
+    /// `marked` (e.g. the closed-loop poles at the nominal gain) are drawn as squares with
+    /// the legend text `marked_label`.
     pub fn root_locus(
         branches: Vec<(Vec<f64>, Vec<f64>)>,
         poles: &[(f64, f64)],
         zeros: &[(f64, f64)],
+        marked: &[(f64, f64)],
+        marked_label: &str,
     ) -> Self {
         let mut fig = Figure::poles_zeros(poles, zeros);
         if let Some(panel) = fig.panels.first_mut() {
@@ -181,6 +185,13 @@ impl Figure {
             for mut m in markers {
                 m.label = m.label.map(|l| format!("open-loop {l}"));
                 panel.series.push(m);
+            }
+            if !marked.is_empty() {
+                let (x, y): (Vec<f64>, Vec<f64>) = marked.iter().copied().unzip();
+                panel.series.push(
+                    Series::markers(x, y, Some(marked_label.into()), MarkerShape::Square)
+                        .with_colour(2),
+                );
             }
         }
         fig
@@ -258,7 +269,7 @@ impl Figure {
             phase.marks.push(Mark::VerticalLine { x: pc, label: None });
             phase.marks.push(Mark::HorizontalLine {
                 y: level,
-                label: Some(format!("{level:.0}\u{b0}")),
+                label: Some(format!("{level:.0}\u{b0}").replace('-', "\u{2212}")),
             });
         }
     }

@@ -45,6 +45,9 @@ pub struct RootLocus {
     pub poles: Vec<C64>,
     /// Open-loop (transmission) zeros, where branches end as `k → ∞`.
     pub zeros: Vec<C64>,
+    /// The closed-loop poles at `k = 1` (the loop as given), house order; empty when the
+    /// loop is algebraically singular there (`1 + D = 0`).
+    pub unit_gain: Vec<C64>,
 }
 
 /// The root locus with the default [`RootLocusParams`]; see [`root_locus_with`].
@@ -63,8 +66,9 @@ pub fn root_locus(loop_gain: &StateSpace) -> NumResult<RootLocus> {
 ///
 /// **Algorithm.** Gain range: `k = 0`, then `k_lo` found by dividing a start gain
 /// `1/|L(jR)|` by 10 until every pole lies within `10⁻³R` of an open-loop pole, and `k_hi`
-/// by multiplying by 10 until every pole lies within `0.02R` of a zero or beyond `4R` from
-/// the origin (at most 20 decades each way); 60 log-spaced gains between them. Then every
+/// by multiplying by 10 until every pole lies within `0.05R` of a zero or beyond `4R` from
+/// the origin (at most 20 decades each way), the last decade narrowed by bisection in
+/// `ln k`; 60 log-spaced gains between them. Then every
 /// interval whose poles (matched to their predecessors by a greedy nearest-pair
 /// assignment) move by more than `max_step·R` is split at its geometric midpoint, until
 /// the steps are small, the interval is narrower than `min_relative_width`, or
@@ -136,16 +140,33 @@ pub fn root_locus_with(loop_gain: &StateSpace, params: &RootLocusParams) -> NumR
         }
         k_lo /= 10.0;
     }
-    let mut k_hi = k0;
-    for _ in 0..20 {
-        let p = at(k_hi)?;
-        let done = p
+    let done = |k: f64| -> NumResult<bool> {
+        Ok(at(k)?
             .iter()
-            .all(|z| z.norm() >= 4.0 * r || zeros.iter().any(|t| (z - t).norm() <= 0.02 * r));
-        if done {
+            .all(|z| z.norm() >= 4.0 * r || zeros.iter().any(|t| (z - t).norm() <= 0.05 * r)))
+    };
+    let mut k_hi = k0;
+    let mut found = false;
+    for _ in 0..20 {
+        if done(k_hi)? {
+            found = true;
             break;
         }
         k_hi *= 10.0;
+    }
+    // Narrow the last decade (bisection in log k) so the far branches stop near 4R
+    // instead of up to ten times the gain beyond it.
+    if found && k_hi > k0 {
+        let (mut lo, mut hi) = ((k_hi / 10.0).ln(), k_hi.ln());
+        for _ in 0..12 {
+            let mid = 0.5 * (lo + hi);
+            if done(mid.exp())? {
+                hi = mid;
+            } else {
+                lo = mid;
+            }
+        }
+        k_hi = hi.exp();
     }
     let count = 60usize;
     let mut gains = vec![0.0];
@@ -197,11 +218,13 @@ pub fn root_locus_with(loop_gain: &StateSpace, params: &RootLocusParams) -> NumR
     let branches = (0..n)
         .map(|b| values.iter().map(|v| v[b]).collect())
         .collect();
+    let unit_gain: Vec<C64> = at(1.0)?.into_iter().filter(|z| !z.re.is_nan()).collect();
     Ok(RootLocus {
         gains,
         branches,
         poles,
         zeros,
+        unit_gain,
     })
 }
 

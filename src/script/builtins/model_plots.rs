@@ -24,8 +24,8 @@ pub const DOCS: &[Doc] = &[
                   resolved; the phase is unwrapped continuously. Frequencies in rad/s. \
                   options: the plot options (title, x_label, y_label, legend — an array of \
                   names, one per model, or false — width, height) and margins: true, which \
-                  marks the 0 dB line, the gain and phase crossovers and the margins of each \
-                  single-input single-output model (see loop_margins).",
+                  marks the 0 dB line, the gain and phase crossovers and the margins (see \
+                  loop_margins) of the first single-input single-output model in the list.",
         example: "let l = transfer_function([1], [1, 3, 2, 0]);\nplot_bode(l, #{ margins: true, title: \"loop gain\" })" },
     Doc { name: "plot_nyquist", family: "plots",
         usage: "plot_nyquist(sys_or_array) → Figure\nplot_nyquist(sys_or_array, options) → Figure",
@@ -46,7 +46,8 @@ pub const DOCS: &[Doc] = &[
         details: "loop_gain: a SISO model L in the unity negative feedback loop u = −k·y. \
                   Branches start at the open-loop poles (crosses) and end at the zeros \
                   (rings) or leave towards infinity (drawn out to about 4× the largest pole \
-                  or zero modulus). The gain grid is adaptive: it is refined wherever a pole \
+                  or zero modulus); squares mark the closed-loop poles at k = 1, the loop \
+                  as given. The gain grid is adaptive: it is refined wherever a pole \
                   moves fast (near breakaway points), so the branches stay smooth. options: \
                   as plot.",
         example: "plot_root_locus(transfer_function([1, 3], [1, 3, 2, 0]))" },
@@ -165,7 +166,7 @@ fn bode(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
                 label,
             });
         }
-        if with_margins && !mimo {
+        if with_margins && !mimo && marks.is_empty() {
             let m = margins::loop_margins(sys).map_err(num(f))?;
             let c = &chans[0];
             marks.push(margin_marks(&m, c));
@@ -275,7 +276,13 @@ fn locus(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
             )
         })
         .collect();
-    let fig = PlotFigure::root_locus(branches, &pairs(&rl.poles), &pairs(&rl.zeros));
+    let fig = PlotFigure::root_locus(
+        branches,
+        &pairs(&rl.poles),
+        &pairs(&rl.zeros),
+        &pairs(&rl.unit_gain),
+        "closed loop at k = 1",
+    );
     Ok(finish(fig, &opts))
 }
 
