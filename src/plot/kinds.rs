@@ -164,4 +164,113 @@ impl Figure {
             ..Figure::new(vec![panel])
         }
     }
+
+    /// Root locus: each branch `(re, im)` as a line (NaN entries break it), the open-loop
+    /// poles as crosses where the branches start and the zeros as rings where they end.
+    /// `marked` (e.g. the closed-loop poles at the nominal gain) are drawn as squares with
+    /// the legend text `marked_label`.
+    pub fn root_locus(
+        branches: Vec<(Vec<f64>, Vec<f64>)>,
+        poles: &[(f64, f64)],
+        zeros: &[(f64, f64)],
+        marked: &[(f64, f64)],
+        marked_label: &str,
+    ) -> Self {
+        let mut fig = Figure::poles_zeros(poles, zeros);
+        if let Some(panel) = fig.panels.first_mut() {
+            let markers = std::mem::take(&mut panel.series);
+            for (re, im) in branches {
+                panel.series.push(Series::line(re, im, None).with_colour(4));
+            }
+            for mut m in markers {
+                m.label = m.label.map(|l| format!("open-loop {l}"));
+                panel.series.push(m);
+            }
+            if !marked.is_empty() {
+                let (x, y): (Vec<f64>, Vec<f64>) = marked.iter().copied().unzip();
+                panel.series.push(
+                    Series::markers(x, y, Some(marked_label.into()), MarkerShape::Square)
+                        .with_colour(2),
+                );
+            }
+        }
+        fig
+    }
+
+    /// Singular values over frequency: one line per singular value (in dB) on a
+    /// logarithmic frequency axis, largest first.
+    pub fn singular_values(freq: Vec<f64>, curves_db: Vec<Vec<f64>>, freq_label: &str) -> Self {
+        let count = curves_db.len();
+        let mut panel = Panel {
+            x_label: Some(freq_label.into()),
+            y_label: Some("singular value (dB)".into()),
+            log_x: true,
+            legend: count > 1,
+            ..Panel::default()
+        };
+        for (k, c) in curves_db.into_iter().enumerate() {
+            let label = match k {
+                0 => "largest".to_string(),
+                _ if k + 1 == count => "smallest".to_string(),
+                _ => format!("σ{}", k + 1),
+            };
+            panel
+                .series
+                .push(Series::line(freq.clone(), c, Some(label)));
+        }
+        Figure::new(vec![panel])
+    }
+
+    /// Marks the stability margins on a frequency-response figure (magnitude panel first,
+    /// phase panel second): the 0 dB line; at the gain crossover `gc` a vertical line in
+    /// both panels labelled with the phase margin `pm` (degrees) and a point on the phase
+    /// curve at `gc_phase`; at the phase crossover `pc` a vertical line labelled with the
+    /// gain margin `gm_db` and a point at `−gm_db` dB, and the phase level `pc_level`
+    /// (−180° + k·360°) as a horizontal line. Missing crossovers (None) are left out.
+    pub fn mark_margins(
+        &mut self,
+        gain_crossover: Option<(f64, f64, f64)>,
+        phase_crossover: Option<(f64, f64, f64)>,
+    ) {
+        let [magnitude, phase] = match self.panels.as_mut_slice() {
+            [a, b, ..] => [a, b],
+            _ => return,
+        };
+        magnitude.marks.push(Mark::HorizontalLine {
+            y: 0.0,
+            label: Some("0 dB".into()),
+        });
+        if let Some((gc, pm, gc_phase)) = gain_crossover {
+            magnitude
+                .marks
+                .push(Mark::VerticalLine { x: gc, label: None });
+            phase.marks.push(Mark::VerticalLine {
+                x: gc,
+                label: Some(format!("PM {pm:.1}\u{b0}")),
+            });
+            phase.marks.push(Mark::Point {
+                x: gc,
+                y: gc_phase,
+                label: None,
+                shape: MarkerShape::Dot,
+            });
+        }
+        if let Some((pc, gm_db, level)) = phase_crossover {
+            magnitude.marks.push(Mark::VerticalLine {
+                x: pc,
+                label: Some(format!("GM {gm_db:.1} dB")),
+            });
+            magnitude.marks.push(Mark::Point {
+                x: pc,
+                y: -gm_db,
+                label: None,
+                shape: MarkerShape::Dot,
+            });
+            phase.marks.push(Mark::VerticalLine { x: pc, label: None });
+            phase.marks.push(Mark::HorizontalLine {
+                y: level,
+                label: Some(format!("{level:.0}\u{b0}").replace('-', "\u{2212}")),
+            });
+        }
+    }
 }

@@ -110,21 +110,27 @@ fn extents(p: &Panel) -> (Extent, Extent) {
 fn limits(fig: &Figure) -> Vec<((f64, f64), (f64, f64))> {
     let ext: Vec<(Extent, Extent)> = fig.panels.iter().map(extents).collect();
     let shared = ext.iter().fold(Extent::default(), |acc, e| acc.union(e.0));
+    let own_x_pad = |p: &Panel| {
+        if p.equal_aspect {
+            0.08
+        } else if has_markers(p) {
+            0.04
+        } else {
+            0.0
+        }
+    };
+    // Shared x-axes need the same padding too, or the panels' ranges differ.
+    let shared_x_pad = fig.panels.iter().map(own_x_pad).fold(0.0, f64::max);
     fig.panels
         .iter()
         .zip(&ext)
         .map(|(p, (ex, ey))| {
             let mut ex = *ex;
+            let mut x_pad = own_x_pad(p);
             if fig.share_x && shared.0.is_some_and(|(lo, _)| usable(lo, p.log_x)) {
                 ex = shared;
+                x_pad = shared_x_pad;
             }
-            let x_pad = if p.equal_aspect {
-                0.08
-            } else if has_markers(p) {
-                0.04
-            } else {
-                0.0
-            };
             let y_pad = if p.equal_aspect {
                 0.08
             } else if p.log_y {

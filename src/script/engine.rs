@@ -50,6 +50,9 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::plot::register(&mut e);
     builtins::files::register(&mut e);
     builtins::time::register(&mut e);
+    builtins::freq::register(&mut e);
+    builtins::design::register(&mut e);
+    builtins::model_plots::register(&mut e);
     register_display(&mut e, state);
     super::stdlib::load(&mut e);
     e

@@ -260,6 +260,51 @@ pub fn unity_feedback(forward: &StateSpace) -> NumResult<StateSpace> {
     feedback(forward, &identity, Sign::Minus)
 }
 
+/// State feedback `u = −K x + r` applied to `sys`, with `r` the new (reference) input.
+///
+/// **Mathematics.** Substituting `u = r − K x` into `x' = A x + B u`, `y = C x + D u`
+/// gives `x' = (A − B K) x + B r`, `y = (C − D K) x + D r`: the same states, inputs and
+/// outputs, the closed-loop poles the eigenvalues of `A − B K` (Kailath 1980, "Linear
+/// Systems", the standard state-feedback substitution).
+///
+/// **Cost.** O(n²·m + p·n·m).
+///
+/// **Errors.** `K` must be m×n (inputs × states) and finite.
+pub fn state_feedback(sys: &StateSpace, k: &DMatrix<f64>) -> NumResult<StateSpace> {
+    let (n, m) = (sys.order(), sys.inputs());
+    if k.nrows() != m || k.ncols() != n {
+        return Err(NumError::shape(
+            "state feedback gain K",
+            format!("{m}×{n} (inputs × states of the model)"),
+            shape_of(k),
+        ));
+    }
+    crate::numeric::check::finite("K", k)?;
+    let mut s = StateSpace::new(
+        &sys.a - &sys.b * k,
+        sys.b.clone(),
+        &sys.c - &sys.d * k,
+        sys.d.clone(),
+        sys.dt,
+    )?;
+    s.names = sys.names.clone();
+    Ok(s)
+}
+
+/// The model scaled by a static gain, `k·G`: `(A, B, k C, k D)`, same states. Errors on
+/// a non-finite `k`. Cost O(p·(n + m)).
+pub fn scale(g: &StateSpace, k: f64) -> NumResult<StateSpace> {
+    if !k.is_finite() {
+        return Err(NumError::invalid(
+            "gain",
+            format!("expected a finite number, found {k}"),
+        ));
+    }
+    let mut s = StateSpace::new(g.a.clone(), g.b.clone(), &g.c * k, &g.d * k, g.dt)?;
+    s.names = g.names.clone();
+    Ok(s)
+}
+
 /// `M⁻¹` for the loop matrix `M = I − σ D_H D_G`, or [`NumError::Singular`] when its
 /// reciprocal condition number is at most `m·ε`.
 fn well_posed_inverse(mat: &DMatrix<f64>, sign: Sign) -> NumResult<DMatrix<f64>> {

@@ -5,3 +5,4 @@ pub mod interconnect;
 pub mod lq;
 pub mod poles;
 pub mod riccati;
+pub mod root_locus;

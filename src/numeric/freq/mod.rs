@@ -1,5 +1,6 @@
 //! Frequency domain: responses, margins, norms.
 
+pub mod curves;
 pub mod grid;
 pub mod margins;
 pub mod norms;

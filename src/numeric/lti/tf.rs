@@ -1,6 +1,7 @@
 //! Rational transfer functions `G(s) = num(s) / den(s)` (or in `z` for discrete models),
 //! coefficients highest power first.
 
+use crate::numeric::linalg::poly::{polynomial_add, polynomial_multiply};
 use crate::numeric::{NumError, NumResult};
 use nalgebra::Complex;
 
@@ -97,6 +98,105 @@ impl TransferFunction {
 /// Horner evaluation of a real polynomial (highest power first) at a complex point.
 pub fn horner(c: &[f64], s: Complex<f64>) -> Complex<f64> {
     c.iter().fold(Complex::new(0.0, 0.0), |acc, &x| acc * s + x)
+}
+
+/// Checks that two transfer functions share a time domain (sample times equal to 1e-12
+/// relative), for the operations that combine them.
+fn same_time(what: &str, g: &TransferFunction, h: &TransferFunction) -> NumResult<()> {
+    if (g.dt - h.dt).abs() > 1e-12 * g.dt.abs().max(h.dt.abs()) {
+        let words = |dt: f64| {
+            if dt > 0.0 {
+                format!("discrete with dt = {dt} s")
+            } else {
+                "continuous".to_string()
+            }
+        };
+        return Err(NumError::invalid(
+            what,
+            format!(
+                "the models have different time domains: {} and {}; convert one explicitly \
+                 (discretize or to_continuous)",
+                words(g.dt),
+                words(h.dt)
+            ),
+        ));
+    }
+    Ok(())
+}
+
+impl TransferFunction {
+    /// Series connection `G(s)·H(s)`: `num_g·num_h / (den_g·den_h)` by polynomial
+    /// multiplication (common factors are not cancelled, so the order is the sum of the
+    /// orders, as for the state-space interconnection). Cost O(n_g·n_h).
+    ///
+    /// **Errors.** Different time domains.
+    pub fn series(&self, h: &TransferFunction) -> NumResult<TransferFunction> {
+        same_time("series (g * h)", self, h)?;
+        TransferFunction::new(
+            &polynomial_multiply(&self.num, &h.num),
+            &polynomial_multiply(&self.den, &h.den),
+            self.dt,
+        )
+    }
+
+    /// Parallel connection `G(s) + σ·H(s)` with `σ = ±1` (`sign > 0` adds):
+    /// `(num_g·den_h + σ num_h·den_g) / (den_g·den_h)`, no cancellation. Cost O(n_g·n_h).
+    ///
+    /// **Errors.** Different time domains.
+    pub fn parallel(&self, h: &TransferFunction, sign: f64) -> NumResult<TransferFunction> {
+        let what = if sign > 0.0 {
+            "parallel (g + h)"
+        } else {
+            "parallel (g - h)"
+        };
+        same_time(what, self, h)?;
+        let a = polynomial_multiply(&self.num, &h.den);
+        let b: Vec<f64> = polynomial_multiply(&h.num, &self.den)
+            .into_iter()
+            .map(|x| x * sign.signum())
+            .collect();
+        TransferFunction::new(
+            &polynomial_add(&a, &b),
+            &polynomial_multiply(&self.den, &h.den),
+            self.dt,
+        )
+    }
+
+    /// The gain-scaled model `k·G(s)` (numerator times `k`). Errors on a non-finite `k`.
+    pub fn scaled(&self, k: f64) -> NumResult<TransferFunction> {
+        let num: Vec<f64> = self.num.iter().map(|x| x * k).collect();
+        TransferFunction::new(&num, &self.den, self.dt)
+    }
+
+    /// Negative feedback `G/(1 + G·H)` around `self` with `h` in the return path:
+    /// `num_g·den_h / (den_g·den_h + num_g·num_h)`, no cancellation (so the closed-loop
+    /// denominator is the characteristic polynomial of the loop). Cost O(n_g·n_h).
+    ///
+    /// **Errors.** Different time domains; an algebraically singular loop (`1 + G(∞)H(∞)
+    /// = 0`: the closed-loop denominator loses its leading term, the interconnection is
+    /// improper and has no state-space model).
+    pub fn negative_feedback(&self, h: &TransferFunction) -> NumResult<TransferFunction> {
+        same_time("feedback (close_loop)", self, h)?;
+        let num = polynomial_multiply(&self.num, &h.den);
+        let den = polynomial_add(
+            &polynomial_multiply(&self.den, &h.den),
+            &polynomial_multiply(&self.num, &h.num),
+        );
+        let scale = den
+            .iter()
+            .fold(0.0f64, |m, x| m.max(x.abs()))
+            .max(f64::MIN_POSITIVE);
+        if den.len() == self.den.len() + h.den.len() - 1
+            && den.first().is_some_and(|x| x.abs() <= 1e-14 * scale)
+        {
+            return Err(NumError::Singular {
+                what: "feedback loop (1 + G(∞)·H(∞) = 0: an algebraic loop without solution)"
+                    .into(),
+                rcond: 0.0,
+            });
+        }
+        TransferFunction::new(&num, &den, self.dt)
+    }
 }
 
 #[cfg(test)]

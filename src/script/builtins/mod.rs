@@ -3,10 +3,13 @@
 
 pub mod arith;
 pub mod complex;
+pub mod design;
 pub mod files;
+pub mod freq;
 pub mod linalg;
 pub mod lti;
 pub mod matrix;
+pub mod model_plots;
 pub mod output;
 pub mod plot;
 pub mod time;
@@ -27,6 +30,9 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     output::DOCS,
     plot::DOCS,
     time::DOCS,
+    freq::DOCS,
+    design::DOCS,
+    model_plots::DOCS,
 ];
 
 /// Display of value types defined by the domain bindings (models, responses, figures).
