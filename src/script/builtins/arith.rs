@@ -83,4 +83,20 @@ pub fn register(engine: &mut Engine) {
     engine.register_fn("min", |a: INT, b: FLOAT| (a as FLOAT).min(b));
     engine.register_fn("min", |a: FLOAT, b: INT| a.min(b as FLOAT));
     engine.register_fn("to_float", |x: FLOAT| x);
+    // IEEE comparisons. The engine's own float comparisons are relative to ε (so that
+    // inf == inf and inf > 1e308 come out false); engineers need exact ones.
+    macro_rules! compare {
+        ($($op:literal => $f:expr),* $(,)?) => {$(
+            {
+                let f: fn(FLOAT, FLOAT) -> bool = $f;
+                engine.register_fn($op, move |a: FLOAT, b: FLOAT| f(a, b));
+                engine.register_fn($op, move |a: INT, b: FLOAT| f(a as FLOAT, b));
+                engine.register_fn($op, move |a: FLOAT, b: INT| f(a, b as FLOAT));
+            }
+        )*};
+    }
+    compare!(
+        "==" => |a, b| a == b, "!=" => |a, b| a != b, "<" => |a, b| a < b,
+        "<=" => |a, b| a <= b, ">" => |a, b| a > b, ">=" => |a, b| a >= b,
+    );
 }
