@@ -48,6 +48,7 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::lti::register(&mut e);
     builtins::output::register(&mut e, state);
     builtins::plot::register(&mut e);
+    builtins::sweep::register(&mut e);
     register_display(&mut e, state);
     super::stdlib::load(&mut e);
     e

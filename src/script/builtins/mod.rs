@@ -8,6 +8,7 @@ pub mod lti;
 pub mod matrix;
 pub mod output;
 pub mod plot;
+pub mod sweep;
 
 use super::docs::Doc;
 use crate::display::Style;
@@ -22,6 +23,7 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     linalg::DOCS,
     output::DOCS,
     plot::DOCS,
+    sweep::DOCS,
 ];
 
 /// Display of value types defined by the domain bindings (models, responses, figures).
@@ -29,6 +31,9 @@ pub fn display_extra(v: &Dynamic, style: Style) -> Option<String> {
     use crate::script::types::{Figure, System, TransferFunction};
     if let Some(f) = v.read_lock::<Figure>() {
         return Some(plot::describe(&f));
+    }
+    if let Some(t) = v.read_lock::<crate::script::sweep::Table>() {
+        return Some(t.display(style));
     }
     if let Some(s) = v.read_lock::<System>() {
         let s = &s.0;
@@ -54,6 +59,9 @@ pub fn display_extra(v: &Dynamic, style: Style) -> Option<String> {
 pub fn json_extra(v: &Dynamic) -> Option<serde_json::Value> {
     use crate::script::json::{float, matrix};
     use crate::script::types::{System, TransferFunction};
+    if let Some(t) = v.read_lock::<crate::script::sweep::Table>() {
+        return Some(t.to_json());
+    }
     if let Some(s) = v.read_lock::<System>() {
         let s = &s.0;
         return Some(serde_json::json!({
