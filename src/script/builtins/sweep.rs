@@ -60,24 +60,19 @@ pub const DOCS: &[Doc] = &[
                   500, 7);\ncases[0]",
     },
     Doc {
-        name: "column",
+        name: "Table",
         family: "parameter studies",
-        usage: "table.column(name) → array",
-        summary: "one column of a sweep table (() in result columns of failed cases)",
-        details: "Use table.successes().column(name) to leave failed cases out (for plots).",
+        usage: "table.column(name) → array\ntable.rows → array of maps\ntable.row(i) → map\n\
+                table.columns, table.parameters, table.results → arrays of names\n\
+                table.cases → case indices\ntable.errors → error text or () per row\n\
+                table.logs → printed text per row\ntable.len(), table.failure_count",
+        summary: "the value a sweep returns: one row per case, parameters then results",
+        details: "Columns: the parameter names (grid order), then the result names (the sorted \
+                  union of the keys the cases returned). A row is a map of its columns; a \
+                  failed case has () in its result columns — use table.successes().column(name) \
+                  for plots. A table from a sharded run holds only that shard's cases; \
+                  table.cases gives their indices in the full sweep.",
         example: "plot(t.column(\"k\"), t.column(\"worst_damping\"))",
-    },
-    Doc {
-        name: "rows",
-        family: "parameter studies",
-        usage: "table.rows → array of maps\ntable.row(i) → map\ntable.columns, \
-                table.parameters, table.results → arrays of names\ntable.cases → case \
-                indices\ntable.errors → error text or () per row\ntable.logs → printed text \
-                per row\ntable.len(), table.failure_count",
-        summary: "the rows and column names of a sweep table",
-        details: "A row is a map of its columns. A table from a sharded run holds only that \
-                  shard's cases; table.cases gives their indices in the full sweep.",
-        example: "t.rows[0]",
     },
     Doc {
         name: "failures",
