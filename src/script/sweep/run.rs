@@ -19,7 +19,7 @@ use rayon::prelude::*;
 use rhai::{Dynamic, Engine, FnPtr, AST};
 use std::io::IsTerminal;
 use std::sync::atomic::{AtomicBool, Ordering};
-use std::sync::Arc;
+use std::sync::{Arc, Mutex};
 use std::time::{Duration, Instant};
 
 /// How to run the cases.
@@ -203,27 +203,37 @@ pub fn run(
         Some(o)
     };
     let threads = if opts.parallel { opts.threads } else { Some(1) };
+    // One worker per pool thread, built on first use. A thread that finds its slot busy
+    // (it stole a case while waiting inside a nested sweep) builds a temporary worker.
+    let on_pool = || -> Vec<Option<Outcome>> {
+        let slots: Vec<Mutex<Option<Worker>>> = (0..rayon::current_num_threads())
+            .map(|_| Mutex::new(None))
+            .collect();
+        selected
+            .par_iter()
+            .map(|i| {
+                let k = rayon::current_thread_index().unwrap_or(0) % slots.len().max(1);
+                match slots.get(k).map(Mutex::try_lock) {
+                    Some(Ok(mut slot)) => {
+                        let w = slot.get_or_insert_with(|| Worker::new(parent));
+                        one(w, i)
+                    }
+                    _ => one(&mut Worker::new(parent), i),
+                }
+            })
+            .collect()
+    };
     let out = match threads {
         Some(1) => {
             let mut w = Worker::new(parent);
             selected.iter().map(|i| one(&mut w, i)).collect()
         }
-        Some(n) => {
-            let pool = rayon::ThreadPoolBuilder::new()
-                .num_threads(n)
-                .build()
-                .map_err(|e| format!("sweep: cannot start {n} threads: {e}"))?;
-            pool.install(|| {
-                selected
-                    .par_iter()
-                    .map_init(|| Worker::new(parent), one)
-                    .collect()
-            })
-        }
-        None => selected
-            .par_iter()
-            .map_init(|| Worker::new(parent), one)
-            .collect(),
+        Some(n) => rayon::ThreadPoolBuilder::new()
+            .num_threads(n)
+            .build()
+            .map_err(|e| format!("sweep: cannot start {n} threads: {e}"))?
+            .install(on_pool),
+        None => on_pool(),
     };
     progress.finish();
     Ok(out)
