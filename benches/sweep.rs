@@ -8,7 +8,7 @@
 //! The plain-Rust control at the end shows what the machine offers at that moment.
 //!
 //! Measured (2 cores, while other sessions' fuzzers and builds kept the load average at
-//! 3.5–6.5): sweep 1 thread 75–96 ms, 2 threads 78–88 ms, speed-up 0.90–1.15×; the control
+//! 3.5–6.5): sweep 1 thread 75–96 ms, 2 threads 57–88 ms, speed-up 0.90–1.44×; the control
 //! gave 0.95–0.99× at the same time, i.e. no second core was free, so the figure says
 //! only that the per-worker engines cost no more than noise. Re-measure on an idle
 //! machine.
