@@ -71,6 +71,7 @@ impl Session {
         let deadline = (options.limits.timeout_seconds > 0.0)
             .then(|| Instant::now() + Duration::from_secs_f64(options.limits.timeout_seconds));
         let engine = script::engine::build(&state, deadline);
+        state.sweep.set_deadline(deadline);
         Session {
             engine,
             scope: Scope::new(),
@@ -89,6 +90,7 @@ impl Session {
             .map_err(|e| ScriptError::from_parse(&e))?;
         self.keep_imports(code);
         let merged = self.lib.merge(&ast);
+        self.state.sweep.set_library(&merged);
         let engine = &self.engine;
         let scope = &mut self.scope;
         let result = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
@@ -141,6 +143,7 @@ impl Session {
                 path,
                 rhai::Position::NONE,
             ) {
+                self.state.sweep.add_module(alias, m.clone());
                 self.engine.register_static_module(alias, m);
             }
         }
@@ -176,6 +179,17 @@ impl Session {
     /// The folder scripts may read and write.
     pub fn root(&self) -> &std::path::Path {
         self.state.sandbox.root()
+    }
+
+    /// Sets how this session's sweeps run (a shard of each, and whether their cases are
+    /// kept for a shard or results file). Call before running the file.
+    pub fn plan_sweeps(&self, plan: script::sweep::SweepPlan) {
+        self.state.sweep.set_plan(plan);
+    }
+
+    /// The cases of the sweeps run so far (kept only when planned with `keep_log`).
+    pub fn sweep_logs(&self) -> Vec<script::sweep::log::SweepLog> {
+        self.state.sweep.logs()
     }
 
     /// Names of the variables in scope (for completion).

@@ -2,8 +2,9 @@
 //! (0 success, 1 script error or drift, 2 bad command-line use).
 
 use clap::{Args, Parser, Subcommand};
-use statebook::notebook::{check, files, run};
+use statebook::notebook::{check, files, run, sweeps};
 use statebook::sandbox::Limits;
+use statebook::script::sweep::{Shard, SweepPlan};
 use statebook::{Session, SessionOptions};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -26,6 +27,24 @@ enum Command {
     Run {
         /// The analysis file (.sbook).
         file: PathBuf,
+        /// Run only slice K of N of every sweep (cases with index mod N = K-1) and write
+        /// the slice's results to a shard file for `statebook merge`.
+        #[arg(long, value_name = "K/N", value_parser = parse_shard)]
+        shard: Option<Shard>,
+        /// Where to write sweep results: the shard file with --shard (default
+        /// FILE-stem.shard-K-of-N.json beside FILE), else the complete results of every
+        /// sweep (what `statebook merge` produces from the shards).
+        #[arg(long, value_name = "PATH")]
+        sweep_results: Option<PathBuf>,
+    },
+    /// Combine the shard files of a sharded run into the sweep results of a single run.
+    Merge {
+        /// The shard files (all N of them, in any order).
+        #[arg(required = true)]
+        parts: Vec<PathBuf>,
+        /// Where to write the combined sweep results.
+        #[arg(short, long, value_name = "OUT")]
+        output: PathBuf,
     },
     /// Render an analysis file to one self-contained report (and save its records).
     Render {
@@ -133,7 +152,12 @@ fn main() -> ExitCode {
     let cli = Cli::parse();
     let code = match cli.command {
         None => statebook::repl::start(cli.common_options()),
-        Some(Command::Run { file }) => cmd_run(&file, &cli.common),
+        Some(Command::Run {
+            file,
+            shard,
+            sweep_results,
+        }) => cmd_run(&file, shard, sweep_results.as_deref(), &cli.common),
+        Some(Command::Merge { parts, output }) => cmd_merge(&parts, &output),
         Some(Command::Render {
             file,
             output,
@@ -162,27 +186,100 @@ fn execute(
     file: &Path,
     common: &Common,
 ) -> Result<(statebook::notebook::output::NotebookRun, Session), u8> {
+    execute_planned(file, common, SweepPlan::default()).map(|(r, s, _)| (r, s))
+}
+
+/// [`execute`] with a sweep plan; also returns the file's SHA-256.
+fn execute_planned(
+    file: &Path,
+    common: &Common,
+    plan: SweepPlan,
+) -> Result<(statebook::notebook::output::NotebookRun, Session, String), u8> {
     let (text, sha) = files::read_analysis(file).map_err(|m| {
         eprintln!("error: {m}");
         1u8
     })?;
     let name = file.display().to_string();
     let mut session = Session::new(&common.options(&folder_of(file)));
+    session.plan_sweeps(plan);
     let r = run::run_text(&mut session, &text, &name, files::provenance(&name, &sha));
-    Ok((r, session))
+    Ok((r, session, sha))
 }
 
-fn cmd_run(file: &Path, common: &Common) -> u8 {
-    let (r, _) = match execute(file, common) {
+fn parse_shard(s: &str) -> Result<Shard, String> {
+    Shard::parse(s)
+}
+
+fn cmd_run(file: &Path, shard: Option<Shard>, sweep_results: Option<&Path>, common: &Common) -> u8 {
+    let plan = SweepPlan {
+        shard,
+        keep_log: shard.is_some() || sweep_results.is_some(),
+    };
+    let (r, session, sha) = match execute_planned(file, common, plan) {
         Ok(v) => v,
         Err(c) => return c,
     };
     print!("{}", run::transcript(&r));
     if let Some(e) = run::first_error(&r) {
         eprintln!("{e}");
+        if plan.keep_log {
+            eprintln!("note: no sweep results written");
+        }
         return 1;
     }
-    0
+    let logs = session.sweep_logs();
+    let (path, text) = match shard {
+        Some(s) => (
+            sweep_results
+                .map(Path::to_path_buf)
+                .unwrap_or_else(|| sweeps::default_shard_path(file, s)),
+            sweeps::shard_text(&sha, s, &logs),
+        ),
+        None => match sweep_results {
+            Some(p) => (p.to_path_buf(), sweeps::run_results_text(&sha, &logs)),
+            None => return 0,
+        },
+    };
+    match statebook::sandbox::write_atomic(&path, text.as_bytes()) {
+        Ok(()) => {
+            println!("wrote {}", path.display());
+            0
+        }
+        Err(e) => {
+            eprintln!("error: cannot write {}: {e}", path.display());
+            1
+        }
+    }
+}
+
+fn cmd_merge(parts: &[PathBuf], output: &Path) -> u8 {
+    let mut texts = Vec::with_capacity(parts.len());
+    for p in parts {
+        match std::fs::read_to_string(p) {
+            Ok(t) => texts.push((p.display().to_string(), t)),
+            Err(e) => {
+                eprintln!("error: cannot read {}: {e}", p.display());
+                return 1;
+            }
+        }
+    }
+    let merged = match sweeps::merge(&texts) {
+        Ok(m) => m,
+        Err(m) => {
+            eprintln!("error: {m}");
+            return 1;
+        }
+    };
+    match statebook::sandbox::write_atomic(output, merged.as_bytes()) {
+        Ok(()) => {
+            println!("wrote {} (from {} shards)", output.display(), parts.len());
+            0
+        }
+        Err(e) => {
+            eprintln!("error: cannot write {}: {e}", output.display());
+            1
+        }
+    }
 }
 
 fn cmd_render(file: &Path, output: Option<&Path>, markdown: bool, common: &Common) -> u8 {

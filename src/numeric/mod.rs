@@ -11,6 +11,7 @@ pub mod freq;
 pub mod linalg;
 pub mod lti;
 pub mod order;
+pub mod sampling;
 #[cfg(test)]
 pub mod testing;
 pub mod time;

@@ -30,6 +30,7 @@ pub const FAMILIES: &[&str] = &[
     "time domain",
     "frequency domain",
     "design",
+    "parameter studies",
     "plots",
     "output and files",
     "library",

@@ -53,6 +53,7 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::freq::register(&mut e);
     builtins::design::register(&mut e);
     builtins::model_plots::register(&mut e);
+    builtins::sweep::register(&mut e);
     register_display(&mut e, state);
     super::stdlib::load(&mut e);
     e

@@ -9,4 +9,5 @@ pub mod json;
 pub mod show;
 pub mod state;
 pub mod stdlib;
+pub mod sweep;
 pub mod types;

@@ -21,6 +21,8 @@ pub struct SessionState {
     pub sandbox: Sandbox,
     /// Resource limits of this session.
     pub limits: Limits,
+    /// What the session's sweeps need (function library, shard plan, log).
+    pub sweep: crate::script::sweep::context::SweepContext,
 }
 
 /// A clonable handle, stored in the engine's default tag.
@@ -42,6 +44,7 @@ impl SessionState {
             records: Mutex::new(Vec::new()),
             sandbox,
             limits,
+            sweep: Default::default(),
         }
     }
 

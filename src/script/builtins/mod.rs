@@ -12,6 +12,7 @@ pub mod matrix;
 pub mod model_plots;
 pub mod output;
 pub mod plot;
+pub mod sweep;
 pub mod time;
 
 use super::docs::Doc;
@@ -33,6 +34,7 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     freq::DOCS,
     design::DOCS,
     model_plots::DOCS,
+    sweep::DOCS,
 ];
 
 /// Display of value types defined by the domain bindings (models, responses, figures).
@@ -43,6 +45,9 @@ pub fn display_extra(v: &Dynamic, style: Style) -> Option<String> {
     }
     if let Some(r) = v.read_lock::<crate::script::types::Response>() {
         return Some(r.summary());
+    }
+    if let Some(t) = v.read_lock::<crate::script::sweep::Table>() {
+        return Some(t.display(style));
     }
     if let Some(s) = v.read_lock::<System>() {
         let s = &s.0;
@@ -68,6 +73,9 @@ pub fn display_extra(v: &Dynamic, style: Style) -> Option<String> {
 pub fn json_extra(v: &Dynamic) -> Option<serde_json::Value> {
     use crate::script::json::{float, matrix};
     use crate::script::types::{System, TransferFunction};
+    if let Some(t) = v.read_lock::<crate::script::sweep::Table>() {
+        return Some(t.to_json());
+    }
     if let Some(s) = v.read_lock::<System>() {
         let s = &s.0;
         return Some(serde_json::json!({

@@ -1,0 +1,449 @@
+//! Parameter-study built-ins: `sweep`, `random_cases`, and the methods of the `Table` a
+//! sweep returns. The machinery (workers, grid, shards) is `script::sweep`; the sampling
+//! is `numeric::sampling`.
+
+use crate::numeric::sampling::{self, Distribution};
+use crate::script::convert::{fail, num, to_count, to_f64, to_str, type_name, Rr};
+use crate::script::docs::Doc;
+use crate::script::state;
+use crate::script::sweep::run::RunOptions;
+use crate::script::sweep::{self, Table};
+use rhai::{Array, Dynamic, Engine, FnPtr, Map, NativeCallContext, FLOAT, INT};
+
+/// Help entries of this file.
+pub const DOCS: &[Doc] = &[
+    Doc {
+        name: "sweep",
+        family: "parameter studies",
+        usage: "sweep(grid, f) → Table\nsweep(grid, f, options) → Table",
+        summary: "runs f on every case of a parameter grid, in parallel on all cores",
+        details: "grid: a map of parameter arrays — every combination, keys in sorted order, \
+                  the last key varying fastest (#{ a: [1, 2], b: [10, 20] } gives (1,10), \
+                  (1,20), (2,10), (2,20)); a value that is not an array is a fixed parameter — \
+                  or an array of parameter maps (the cases as given, e.g. from random_cases).\n\
+                  f: a function of one parameter map returning a map of results (another value \
+                  v counts as #{ value: v }): a function name, Fn(\"name\"), or a closure. \
+                  Each worker runs f in its own engine with the functions defined so far; a \
+                  closure's captured variables are copied into every case, so changing them \
+                  inside f changes nothing outside. f cannot see other variables of the \
+                  analysis: pass what it needs in the grid or capture it.\n\
+                  Results: a Table (columns: parameters, then results; one row per case, in \
+                  case order whatever the scheduling). A failing case is listed with its \
+                  parameters and error (a warning names the first) and the rest still run.\n\
+                  Text printed inside f goes to the case's log (table.logs), not the cell; \
+                  record inside f has no effect. Limits (operations, call depth) apply per \
+                  case. A progress bar appears on stderr for sweeps longer than half a second \
+                  when stderr is a terminal.\n\
+                  options: #{ parallel: true, threads: one per core, stop_on_error: false, \
+                  progress: true } — stop_on_error makes the first failure (the lowest case \
+                  index among the cases run) an error of the sweep.\n\
+                  With `statebook run FILE --shard K/N` each sweep runs only the cases whose \
+                  index i has i mod N = K − 1; see `statebook merge`.",
+        example: "fn plant_case(p) {\n  let sys = state_space([[0, 1], [-p.k, -p.c]], [[0], [1]], \
+                  [[1, 0]], 0);\n  #{ worst_damping: modes(sys).map(|m| m.damping).min() }\n}\n\
+                  let t = sweep(#{ k: [1, 4, 9], c: [0.2, 0.4] }, plant_case);\n\
+                  t.column(\"worst_damping\")",
+    },
+    Doc {
+        name: "random_cases",
+        family: "parameter studies",
+        usage: "random_cases(spec, count, seed) → array of maps",
+        summary: "seeded Monte Carlo cases: uniform [low, high] or normal #{ mean, std }",
+        details: "spec: a map from parameter name to [low, high] (uniform), #{ mean, std } \
+                  (normal) or a number (fixed). count: number of cases. seed: an integer.\n\
+                  The same spec, count and seed give the same numbers on every run and machine \
+                  (xoshiro256** seeded by SplitMix64; normal by the polar method; only IEEE \
+                  basic operations, sqrt and a logarithm of our own). Each parameter has its \
+                  own stream, so adding a parameter leaves the others' samples unchanged, and \
+                  the first n cases of a larger count are the cases of count n.",
+        example: "let cases = random_cases(#{ k: [0.9, 1.1], m: #{ mean: 2.0, std: 0.05 } }, \
+                  500, 7);\ncases[0]",
+    },
+    Doc {
+        name: "Table",
+        family: "parameter studies",
+        usage: "table.column(name) → array\ntable.rows → array of maps\ntable.row(i) → map\n\
+                table.columns, table.parameters, table.results → arrays of names\n\
+                table.cases → case indices\ntable.errors → error text or () per row\n\
+                table.logs → printed text per row\ntable.len(), table.failure_count",
+        summary: "the value a sweep returns: one row per case, parameters then results",
+        details: "Columns: the parameter names (grid order), then the result names (the sorted \
+                  union of the keys the cases returned). A row is a map of its columns; a \
+                  failed case has () in its result columns — use table.successes().column(name) \
+                  for plots. A table from a sharded run holds only that shard's cases; \
+                  table.cases gives their indices in the full sweep.",
+        example: "plot(t.column(\"k\"), t.column(\"worst_damping\"))",
+    },
+    Doc {
+        name: "failures",
+        family: "parameter studies",
+        usage: "table.failures() → Table\ntable.successes() → Table\ntable.filter(f) → Table",
+        summary: "the failed cases, the successful ones, or the rows where f(row) is true",
+        details: "f: a function of a row map returning true or false.",
+        example: "t.filter(|r| r.k > 2).len()",
+    },
+    Doc {
+        name: "row_with_smallest",
+        family: "parameter studies",
+        usage: "table.row_with_smallest(name) → map\ntable.row_with_largest(name) → map",
+        summary: "the row whose numeric column name is smallest (or largest)",
+        details: "Failed cases and NaN values are skipped; ties go to the earliest row.",
+        example: "record(\"worst_case\", t.row_with_smallest(\"worst_damping\"));",
+    },
+    Doc {
+        name: "distinct_values",
+        family: "parameter studies",
+        usage: "table.distinct_values(name) → array",
+        summary: "the distinct values of a column, in order of first appearance",
+        details: "For a grid sweep these are the grid's levels of that parameter.",
+        example: "for k in t.distinct_values(\"k\") { print(k); }",
+    },
+    Doc {
+        name: "save_csv",
+        family: "parameter studies",
+        usage: "table.save_csv(path)",
+        summary: "writes a sweep table as CSV (inside the analysis folder)",
+        details: "A header line of column names, then one line per case; floats in their \
+                  shortest exact form, () as an empty field, a case_error column when a case \
+                  failed. record(name, table) and to_json(table) give an object of columns \
+                  ({\"k\": [..], \"worst_damping\": [..]}, plus \"case_error\" when a case \
+                  failed).",
+        example: "t.save_csv(\"tolerance-study.csv\");",
+    },
+];
+
+fn opt_bool(m: &Map, key: &str) -> Rr<Option<bool>> {
+    match m.get(key) {
+        None => Ok(None),
+        Some(v) => v.as_bool().map(Some).map_err(|_| {
+            fail(format!(
+                "sweep: option {key} must be true or false, found {}",
+                type_name(v)
+            ))
+        }),
+    }
+}
+
+fn run_options(m: &Map) -> Rr<RunOptions> {
+    const KNOWN: &[&str] = &["parallel", "threads", "stop_on_error", "progress"];
+    for k in m.keys() {
+        if !KNOWN.contains(&k.as_str()) {
+            return Err(fail(format!(
+                "sweep: unknown option '{k}' (known: {})",
+                KNOWN.join(", ")
+            )));
+        }
+    }
+    let d = RunOptions::default();
+    let threads = match m.get("threads") {
+        None => None,
+        Some(v) => {
+            let n = to_count(v, "sweep", "option threads")?;
+            if n == 0 {
+                return Err(fail("sweep: option threads must be at least 1"));
+            }
+            Some(n.min(1024))
+        }
+    };
+    Ok(RunOptions {
+        parallel: opt_bool(m, "parallel")?.unwrap_or(d.parallel),
+        threads,
+        stop_on_error: opt_bool(m, "stop_on_error")?.unwrap_or(d.stop_on_error),
+        progress: opt_bool(m, "progress")?.unwrap_or(d.progress),
+    })
+}
+
+fn case_function(f: &Dynamic) -> Rr<FnPtr> {
+    if let Some(p) = f.clone().try_cast::<FnPtr>() {
+        return Ok(p);
+    }
+    if f.is_string() {
+        return FnPtr::new(f.to_string()).map_err(|e| fail(format!("sweep: f: {e}")));
+    }
+    Err(fail(format!(
+        "sweep: f must be a function (a name, Fn(\"name\") or a closure), found {}",
+        type_name(f)
+    )))
+}
+
+fn run_sweep(ctx: &NativeCallContext, grid: &Dynamic, f: &Dynamic, opts: &Map) -> Rr<Table> {
+    let Some(st) = state::of(ctx) else {
+        return Err(fail("sweep: no session"));
+    };
+    let f = case_function(f)?;
+    let opts = run_options(opts)?;
+    sweep::sweep(&st, grid, f, &opts)
+}
+
+fn distribution(name: &str, v: &Dynamic) -> Rr<Option<Distribution>> {
+    let what = format!("spec.{name}");
+    if let Some(a) = v.read_lock::<Array>() {
+        if a.len() != 2 {
+            return Err(fail(format!(
+                "random_cases: {what} must be [low, high], found an array of {}",
+                a.len()
+            )));
+        }
+        let low = to_f64(&a[0], "random_cases", &format!("{what}[0]"))?;
+        let high = to_f64(&a[1], "random_cases", &format!("{what}[1]"))?;
+        return Ok(Some(Distribution::Uniform { low, high }));
+    }
+    if let Some(m) = v.read_lock::<Map>() {
+        for k in m.keys() {
+            if k != "mean" && k != "std" {
+                return Err(fail(format!(
+                    "random_cases: {what} has '{k}'; a normal parameter is #{{ mean, std }}"
+                )));
+            }
+        }
+        let get = |k: &str| -> Rr<f64> {
+            let x = m.get(k).ok_or_else(|| {
+                fail(format!(
+                    "random_cases: {what} needs '{k}' (a normal parameter is #{{ mean, std }})"
+                ))
+            })?;
+            to_f64(x, "random_cases", &format!("{what}.{k}"))
+        };
+        return Ok(Some(Distribution::Normal {
+            mean: get("mean")?,
+            std: get("std")?,
+        }));
+    }
+    if v.is::<INT>() || v.is::<FLOAT>() {
+        return Ok(None);
+    }
+    Err(fail(format!(
+        "random_cases: {what} must be [low, high], #{{ mean, std }} or a number, found {}",
+        type_name(v)
+    )))
+}
+
+fn random_cases(
+    ctx: &NativeCallContext,
+    spec: &Dynamic,
+    count: &Dynamic,
+    seed: &Dynamic,
+) -> Rr<Array> {
+    let f = "random_cases";
+    let Some(spec) = spec.read_lock::<Map>() else {
+        return Err(fail(format!(
+            "random_cases: spec must be a map of parameters, found {}",
+            type_name(spec)
+        )));
+    };
+    let count = to_count(count, f, "count")?;
+    let limit = state::of(ctx)
+        .map(|s| s.limits.array_size)
+        .unwrap_or(usize::MAX);
+    if count > limit {
+        return Err(fail(format!(
+            "random_cases: {count} cases exceed the array-size limit {limit}"
+        )));
+    }
+    let Some(seed) = seed.clone().try_cast::<INT>() else {
+        return Err(fail(format!(
+            "random_cases: seed must be an integer, found {}",
+            type_name(seed)
+        )));
+    };
+    let mut columns: Vec<(String, Vec<Dynamic>)> = Vec::new();
+    for (name, v) in spec.iter() {
+        let values = match distribution(name, v)? {
+            Some(d) => sampling::sample(d, name, count, seed as u64)
+                .map_err(num(f))?
+                .into_iter()
+                .map(Dynamic::from_float)
+                .collect(),
+            None => vec![v.clone(); count],
+        };
+        columns.push((name.to_string(), values));
+    }
+    Ok((0..count)
+        .map(|i| {
+            let mut m = Map::new();
+            for (name, values) in &columns {
+                m.insert(name.as_str().into(), values[i].clone());
+            }
+            Dynamic::from_map(m)
+        })
+        .collect())
+}
+
+fn column_of(t: &Table, name: &str, fname: &str) -> Rr<usize> {
+    t.position(name).ok_or_else(|| {
+        fail(format!(
+            "{fname}: the table has no column '{name}' (columns: {})",
+            t.columns().join(", ")
+        ))
+    })
+}
+
+fn extreme_row(t: &Table, name: &Dynamic, largest: bool) -> Rr<Map> {
+    let fname = if largest {
+        "row_with_largest"
+    } else {
+        "row_with_smallest"
+    };
+    let name = to_str(name, fname, "name")?;
+    let j = column_of(t, &name, fname)?;
+    let mut best: Option<(usize, f64)> = None;
+    for (i, r) in t.rows.iter().enumerate() {
+        if r.error.is_some() {
+            continue;
+        }
+        let v = &r.values[j];
+        let Ok(x) = to_f64(v, fname, "value") else {
+            continue;
+        };
+        if x.is_nan() {
+            continue;
+        }
+        let better = match best {
+            None => true,
+            Some((_, b)) => (largest && x > b) || (!largest && x < b),
+        };
+        if better {
+            best = Some((i, x));
+        }
+    }
+    let Some((i, _)) = best else {
+        return Err(fail(format!(
+            "{fname}: column '{name}' has no numeric value in a successful case"
+        )));
+    };
+    t.row_map(i)
+        .ok_or_else(|| fail(format!("{fname}: no row {i}")))
+}
+
+fn names(v: &[String]) -> Array {
+    v.iter().map(|s| Dynamic::from(s.clone())).collect()
+}
+
+/// Registers the parameter-study built-ins.
+pub fn register(engine: &mut Engine) {
+    engine.register_type_with_name::<Table>("Table");
+    engine.register_fn(
+        "sweep",
+        |ctx: NativeCallContext, grid: Dynamic, f: Dynamic| run_sweep(&ctx, &grid, &f, &Map::new()),
+    );
+    engine.register_fn(
+        "sweep",
+        |ctx: NativeCallContext, grid: Dynamic, f: Dynamic, o: Map| run_sweep(&ctx, &grid, &f, &o),
+    );
+    engine.register_fn(
+        "random_cases",
+        |ctx: NativeCallContext, spec: Dynamic, count: Dynamic, seed: Dynamic| {
+            random_cases(&ctx, &spec, &count, &seed)
+        },
+    );
+
+    engine.register_fn("column", |t: &mut Table, name: Dynamic| -> Rr<Array> {
+        let name = to_str(&name, "column", "name")?;
+        let j = column_of(t, &name, "column")?;
+        Ok(t.rows.iter().map(|r| r.values[j].clone()).collect())
+    });
+    engine.register_fn("row", |t: &mut Table, i: Dynamic| -> Rr<Map> {
+        let k = to_count(&i, "row", "index")?;
+        t.row_map(k).ok_or_else(|| {
+            fail(format!(
+                "row: index {k} is out of range (the table has {} rows)",
+                t.rows.len()
+            ))
+        })
+    });
+    engine.register_get("rows", |t: &mut Table| -> Array {
+        (0..t.rows.len())
+            .filter_map(|i| t.row_map(i).map(Dynamic::from_map))
+            .collect()
+    });
+    engine.register_get("columns", |t: &mut Table| names(&t.columns()));
+    engine.register_get("parameters", |t: &mut Table| names(&t.parameters));
+    engine.register_get("results", |t: &mut Table| names(&t.results));
+    engine.register_get("cases", |t: &mut Table| -> Array {
+        t.rows
+            .iter()
+            .map(|r| Dynamic::from_int(r.case as INT))
+            .collect()
+    });
+    engine.register_get("errors", |t: &mut Table| -> Array {
+        t.rows
+            .iter()
+            .map(|r| r.error.clone().map(Dynamic::from).unwrap_or(Dynamic::UNIT))
+            .collect()
+    });
+    engine.register_get("logs", |t: &mut Table| -> Array {
+        t.rows
+            .iter()
+            .map(|r| Dynamic::from(r.log.clone()))
+            .collect()
+    });
+    engine.register_get("failure_count", |t: &mut Table| t.failure_count() as INT);
+    engine.register_fn("len", |t: &mut Table| t.rows.len() as INT);
+    engine.register_fn("failures", |t: &mut Table| t.retain(|r| r.error.is_some()));
+    engine.register_fn("successes", |t: &mut Table| t.retain(|r| r.error.is_none()));
+    engine.register_fn(
+        "filter",
+        |ctx: NativeCallContext, t: &mut Table, f: FnPtr| -> Rr<Table> {
+            let mut keep = Vec::with_capacity(t.rows.len());
+            for i in 0..t.rows.len() {
+                let row = Dynamic::from_map(t.row_map(i).unwrap_or_default());
+                let v: Dynamic = f.call_within_context(&ctx, (row,))?;
+                keep.push(v.as_bool().map_err(|_| {
+                    fail(format!(
+                        "filter: the function must return true or false, found {}",
+                        type_name(&v)
+                    ))
+                })?);
+            }
+            let mut k = keep.into_iter();
+            Ok(t.retain(|_| k.next().unwrap_or(false)))
+        },
+    );
+    engine.register_fn("row_with_smallest", |t: &mut Table, name: Dynamic| {
+        extreme_row(t, &name, false)
+    });
+    engine.register_fn("row_with_largest", |t: &mut Table, name: Dynamic| {
+        extreme_row(t, &name, true)
+    });
+    engine.register_fn(
+        "distinct_values",
+        |t: &mut Table, name: Dynamic| -> Rr<Array> {
+            let name = to_str(&name, "distinct_values", "name")?;
+            let j = column_of(t, &name, "distinct_values")?;
+            let mut seen = std::collections::HashSet::new();
+            let mut out = Array::new();
+            for r in &t.rows {
+                let v = &r.values[j];
+                if v.is_unit() {
+                    continue;
+                }
+                let key = crate::script::json::encode(v).to_string();
+                if seen.insert(key) {
+                    out.push(v.clone());
+                }
+            }
+            Ok(out)
+        },
+    );
+    engine.register_fn(
+        "save_csv",
+        |ctx: NativeCallContext, t: &mut Table, path: Dynamic| -> Rr<()> {
+            let path = to_str(&path, "save_csv", "path")?;
+            let Some(st) = state::of(&ctx) else {
+                return Err(fail("save_csv: no session"));
+            };
+            let real = st
+                .sandbox
+                .write_path(&path)
+                .map_err(|m| fail(format!("save_csv: {m}")))?;
+            crate::sandbox::write_atomic(&real, t.to_csv().as_bytes())
+                .map_err(|e| fail(format!("save_csv: cannot write {path}: {e}")))
+        },
+    );
+    engine.register_fn("to_string", |ctx: NativeCallContext, t: &mut Table| {
+        t.display(state::style(&ctx))
+    });
+    engine.register_fn("to_debug", |ctx: NativeCallContext, t: &mut Table| {
+        t.display(state::style(&ctx))
+    });
+}
