@@ -269,3 +269,36 @@ fn csv_round_trip_and_path_refusals() {
         assert!(r.failed && e.contains(what), "{code}: {e}");
     }
 }
+
+/// Every demo whose results are committed re-checks cleanly on this machine: the numbers a
+/// colleague gets are the numbers that were saved.
+#[test]
+fn committed_demo_results_still_check() {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-scripts");
+    let mut checked = 0;
+    for e in std::fs::read_dir(&dir)
+        .expect("demo-scripts")
+        .filter_map(|e| e.ok())
+    {
+        let p = e.path();
+        if p.extension().is_some_and(|x| x == "sbook") {
+            let stem = p
+                .file_stem()
+                .map(|s| s.to_string_lossy().into_owned())
+                .unwrap_or_default();
+            if dir.join(format!("{stem}.results.json")).exists() {
+                let out = bin().arg("check").arg(&p).output().expect("run");
+                assert_eq!(
+                    out.status.code(),
+                    Some(0),
+                    "{}:\n{}{}",
+                    p.display(),
+                    text(&out.stdout),
+                    text(&out.stderr)
+                );
+                checked += 1;
+            }
+        }
+    }
+    assert!(checked >= 1, "no demo has committed results");
+}
