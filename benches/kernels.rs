@@ -163,9 +163,9 @@ impl Bench {
             .push(json!({"name": name, "available": false, "note": why}));
     }
 
-    fn input(&mut self, key: String, v: Value) {
+    fn input(&mut self, key: String, v: impl FnOnce() -> Value) {
         if self.opts.inputs.is_some() {
-            self.inputs.insert(key, v);
+            self.inputs.insert(key, v());
         }
     }
 }
@@ -210,7 +210,7 @@ fn main() {
     // Eigenvalues.
     for &n in &[10usize, 50, 200, 500] {
         let a = Rng(100 + n as u64).matrix(n, n);
-        b.input(format!("eig_{n}"), rows(&a));
+        b.input(format!("eig_{n}"), || rows(&a));
         if b.wanted_n("eigenvalues", n) {
             let t = measure(q, || {
                 black_box(eigen::eigenvalues(black_box(&a)).ok());
@@ -221,7 +221,7 @@ fn main() {
     // Matrix exponential.
     for &n in &[10usize, 50, 200] {
         let a = Rng(200 + n as u64).matrix(n, n) / (n as f64).sqrt();
-        b.input(format!("expm_{n}"), rows(&a));
+        b.input(format!("expm_{n}"), || rows(&a));
         if b.wanted_n("expm", n) {
             let t = measure(q, || {
                 black_box(expm(black_box(&a)).ok());
@@ -234,8 +234,8 @@ fn main() {
         let a = stable(n, 300 + n as u64);
         let m = Rng(350 + n as u64).matrix(n, n);
         let qm = &m * m.transpose() / n as f64 + DMatrix::identity(n, n);
-        b.input(format!("lyap_A_{n}"), rows(&a));
-        b.input(format!("lyap_Q_{n}"), rows(&qm));
+        b.input(format!("lyap_A_{n}"), || rows(&a));
+        b.input(format!("lyap_Q_{n}"), || rows(&qm));
         if b.wanted_n("lyapunov", n) {
             let x = solve_lyapunov(&a, &qm).expect("Lyapunov input is well posed");
             let res = (&a * &x + &x * a.transpose() + &qm).norm() / qm.norm();
@@ -252,8 +252,8 @@ fn main() {
         let bm = Rng(450 + n as u64).matrix(n, m);
         let qm = DMatrix::<f64>::identity(n, n);
         let r = DMatrix::<f64>::identity(m, m);
-        b.input(format!("ric_A_{n}"), rows(&a));
-        b.input(format!("ric_B_{n}"), rows(&bm));
+        b.input(format!("ric_A_{n}"), || rows(&a));
+        b.input(format!("ric_B_{n}"), || rows(&bm));
         if b.wanted_n("riccati", n) {
             let sol = solve_riccati(&a, &bm, &qm, &r).expect("Riccati input is well posed");
             let t = measure(q, || {
@@ -266,14 +266,14 @@ fn main() {
     let w: Vec<f64> = (0..1000)
         .map(|k| 10f64.powf(-2.0 + 5.0 * k as f64 / 999.0))
         .collect();
-    b.input("freq_w".into(), json!(w));
+    b.input("freq_w".into(), || json!(w));
     for &n in &[10usize, 50, 200] {
         let a = stable(n, 500 + n as u64);
         let mut rng = Rng(550 + n as u64);
         let (bm, cm) = (rng.matrix(n, 2), rng.matrix(2, n));
-        b.input(format!("freq_A_{n}"), rows(&a));
-        b.input(format!("freq_B_{n}"), rows(&bm));
-        b.input(format!("freq_C_{n}"), rows(&cm));
+        b.input(format!("freq_A_{n}"), || rows(&a));
+        b.input(format!("freq_B_{n}"), || rows(&bm));
+        b.input(format!("freq_C_{n}"), || rows(&cm));
         let sys = StateSpace::new(a, bm, cm, DMatrix::zeros(2, 2), 0.0).expect("valid model");
         if b.wanted_n("freq", n) {
             let t = measure(q, || {
@@ -370,12 +370,12 @@ fn simulation(b: &mut Bench) {
     let e = expm(&blk).expect("finite");
     let ad = e.view((0, 0), (n, n)).into_owned();
     let bd = e.view((0, n), (n, 1)).into_owned();
-    b.input("sim_A".into(), rows(&a));
-    b.input("sim_B".into(), rows(&bm));
-    b.input("sim_C".into(), rows(&cm));
-    b.input("sim_Ad".into(), rows(&ad));
-    b.input("sim_Bd".into(), rows(&bd));
-    b.input("sim_dt".into(), json!(dt));
+    b.input("sim_A".into(), || rows(&a));
+    b.input("sim_B".into(), || rows(&bm));
+    b.input("sim_C".into(), || rows(&cm));
+    b.input("sim_Ad".into(), || rows(&ad));
+    b.input("sim_Bd".into(), || rows(&bd));
+    b.input("sim_dt".into(), || json!(dt));
     if !b.wanted("sim") && !b.wanted("mac") {
         return;
     }
