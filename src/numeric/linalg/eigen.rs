@@ -37,24 +37,23 @@ pub struct Eigen {
 /// Algorithm: exact power-of-two prescaling if the entries are extreme, balancing by
 /// diagonal similarity (Parlett & Reinsch 1969, "Balancing a matrix for calculation of
 /// eigenvalues and eigenvectors"; nalgebra's variant, no permutations), the real Schur form
-/// ([`RealSchur::new`], Francis double-shift QR) with 2×2 blocks in standard form
-/// `[a b; c a]`, whose pair is read as `a ± i·√(|b|·|c|)`.
+/// ([`RealSchur::eigenvalues_only`], Francis double-shift QR) whose 2×2 blocks are put in
+/// standard form `[a b; c a]` (the method of `dlanv2`) and read as `a ± i·√(|b|·|c|)`.
 ///
-/// Cost: about 25·n³ flops (the Schur form is computed with its orthogonal factor).
+/// Cost: about 10·n³ flops (neither the orthogonal factor nor the off-diagonal part of the
+/// Schur form is computed: [`RealSchur::eigenvalues_only`]).
 /// Tolerance: backward stable — the values are exact for some `A + E` with
 /// `‖E‖ ≈ c·n·ε·‖D⁻¹AD‖` (D the balancing scaling); a simple eigenvalue's error is about
 /// that times its condition number, and a k-fold defective one moves by about `‖E‖^(1/k)`.
 ///
 /// Errors: [`NumError::NotSquare`], [`NumError::NotFinite`], and those of
-/// [`RealSchur::new`]. A 0×0 matrix gives an empty list.
+/// [`RealSchur::eigenvalues_only`]. A 0×0 matrix gives an empty list.
 pub fn eigenvalues(a: &DMatrix<f64>) -> NumResult<Vec<Complex<f64>>> {
     let prep = Prepared::new(a)?;
     if prep.n == 0 {
         return Ok(Vec::new());
     }
-    let schur = RealSchur::new(&prep.balanced)?;
-    let mut values: Vec<C64> = schur
-        .eigenvalues()
+    let mut values: Vec<C64> = RealSchur::eigenvalues_only(&prep.balanced)?
         .into_iter()
         .map(|z| z * prep.scale)
         .collect();

@@ -118,9 +118,55 @@ fn pade(a: &DMatrix<f64>, m: usize) -> NumResult<DMatrix<f64>> {
     };
     let denominator = &v - &u;
     let numerator = &v + &u;
-    denominator.lu().solve(&numerator).ok_or_else(|| {
+    lu_solve_blocked(denominator, numerator).ok_or_else(|| {
         NumError::no_solution("matrix exponential", "the Padé denominator is singular")
     })
+}
+
+/// Solves `M X = B` for square `M` with many right-hand sides: LU factorisation with
+/// partial pivoting (nalgebra's), then forward and back substitution by blocks of rows,
+/// each block's effect on the remaining rows applied as one matrix product (the blocked
+/// form of LAPACK's `dtrsm`), so that most of the O(n³) work runs in the matrix-product
+/// kernel. `None` when `U` has an exactly zero pivot (as `LU::solve`).
+fn lu_solve_blocked(m: DMatrix<f64>, mut b: DMatrix<f64>) -> Option<DMatrix<f64>> {
+    const NB: usize = 32;
+    let n = m.nrows();
+    let lu = m.lu();
+    let (p, l, u) = lu.unpack();
+    if u.diagonal().iter().any(|d| *d == 0.0) {
+        return None;
+    }
+    p.permute_rows(&mut b);
+    // Forward: L Y = P B, L unit lower triangular.
+    let mut k0 = 0;
+    while k0 < n {
+        let k1 = (k0 + NB).min(n);
+        let lkk = l.view((k0, k0), (k1 - k0, k1 - k0));
+        let mut top = b.rows_mut(k0, k1 - k0);
+        lkk.solve_lower_triangular_with_diag_mut(&mut top, 1.0);
+        if k1 < n {
+            let (top, mut rest) = b.rows_range_pair_mut(k0..k1, k1..n);
+            rest.gemm(-1.0, &l.view((k1, k0), (n - k1, k1 - k0)), &top, 1.0);
+        }
+        k0 = k1;
+    }
+    // Backward: U X = Y.
+    let mut k1 = n;
+    while k1 > 0 {
+        let k0 = k1.saturating_sub(NB);
+        let ukk = u.view((k0, k0), (k1 - k0, k1 - k0));
+        let mut blk = b.rows_mut(k0, k1 - k0);
+        if !ukk.solve_upper_triangular_mut(&mut blk) {
+            return None;
+        }
+        if k0 > 0 {
+            let (above, blk) = b.rows_range_pair_mut(0..k0, k0..k1);
+            let mut above = above;
+            above.gemm(-1.0, &u.view((0, k0), (k0, k1 - k0)), &blk, 1.0);
+        }
+        k1 = k0;
+    }
+    Some(b)
 }
 
 /// Matrix exponential e^A = Σ Aᵏ/k! of a square matrix, with default [`ExpmParams`].

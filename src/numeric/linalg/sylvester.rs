@@ -16,7 +16,8 @@
 
 use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
-use nalgebra::{Complex, DMatrix, Schur};
+use crate::numeric::linalg::schur::{RealSchur, SchurParams};
+use nalgebra::{Complex, DMatrix};
 
 /// Tolerances of the matrix-equation solvers (this file and
 /// [`crate::numeric::linalg::hammarling`]).
@@ -233,8 +234,10 @@ fn lyapunov_impl(
 
 /// Real Schur decomposition `A = Q T Qᵀ` with an iteration cap, as `(Q, T)`.
 ///
-/// `T` is upper quasi-triangular with exact zeros below the subdiagonal (nalgebra's
-/// Hessenberg and QR sweeps write them). Fails with [`NumError::NoConvergence`] at the cap.
+/// [`RealSchur::with_params`] (Francis double-shift QR organised as in `dlahqr`, with
+/// `params.schur_iterations_per_row` sweeps allowed per deflation): `T` is upper
+/// quasi-triangular with exact zeros below its 1×1/2×2 diagonal blocks, every 2×2 block in
+/// standard form. Fails with [`NumError::NoConvergence`] at the cap.
 pub(crate) fn real_schur(
     a: &DMatrix<f64>,
     what: &str,
@@ -244,17 +247,16 @@ pub(crate) fn real_schur(
     if n == 0 {
         return Ok((DMatrix::zeros(0, 0), DMatrix::zeros(0, 0)));
     }
-    let cap = params
-        .schur_iterations_per_row
-        .max(1)
-        .saturating_mul(n)
-        .max(10);
-    let schur =
-        Schur::try_new(a.clone(), f64::EPSILON, cap).ok_or_else(|| NumError::NoConvergence {
+    let schur_params = SchurParams {
+        iterations_per_row: params.schur_iterations_per_row.max(1),
+    };
+    let RealSchur { q, t } = RealSchur::with_params(a, &schur_params).map_err(|e| match e {
+        NumError::NoConvergence { iterations, .. } => NumError::NoConvergence {
             what: format!("real Schur decomposition of {what}"),
-            iterations: cap,
-        })?;
-    let (q, t) = schur.unpack();
+            iterations,
+        },
+        other => other,
+    })?;
     check::finite(what, &t)?;
     check::finite(what, &q)?;
     Ok((q, t))
@@ -313,6 +315,9 @@ fn solve_quasi_triangular(
     kind: Kind,
     threshold: f64,
 ) -> Result<DMatrix<f64>, Resonance> {
+    if kind == Kind::Continuous {
+        return solve_continuous_by_columns(s, r, g, threshold);
+    }
     let (m, n) = (s.nrows(), r.nrows());
     let sb = quasi_blocks(s).map_err(|_| no_schur())?;
     let rb = quasi_blocks(r).map_err(|_| no_schur())?;
@@ -358,6 +363,98 @@ fn solve_quasi_triangular(
             if kind == Kind::Discrete {
                 let vkl = z.view((k0, 0), (p, l1)) * r.view((0, l0), (l1, q));
                 v.view_mut((k0, l0), (p, q)).copy_from(&vkl);
+            }
+        }
+    }
+    Ok(z)
+}
+
+/// Solves `S Z + Z R = G` for upper quasi-triangular `S` (m×m) and `R` (n×n), block
+/// column by block column of `Z` (the column-oriented ordering of Bartels & Stewart's
+/// back-substitution): for the block column `l` of `R`, first `G[:, l] − Z[:, <l]·R[<l, l]`,
+/// then the quasi-triangular system `S·Z[:, l] + Z[:, l]·R[l, l] = …` from the bottom block
+/// up, each solved block updating the rows above it by a column of `S`. Every inner loop
+/// runs down a contiguous column of the column-major storage, and 1×1 blocks allocate
+/// nothing. `threshold` is the absolute pivot floor.
+fn solve_continuous_by_columns(
+    s: &DMatrix<f64>,
+    r: &DMatrix<f64>,
+    g: DMatrix<f64>,
+    threshold: f64,
+) -> Result<DMatrix<f64>, Resonance> {
+    let m = s.nrows();
+    let sb = quasi_blocks(s).map_err(|_| no_schur())?;
+    let rb = quasi_blocks(r).map_err(|_| no_schur())?;
+    let mut z = g;
+    if m == 0 {
+        return Ok(z);
+    }
+    let sd = s.as_slice();
+    for &(l0, q) in rb.iter() {
+        // Right-hand side: columns l0..l0+q minus Z[:, 0..l0]·R[0..l0, l0..l0+q].
+        {
+            let (left, right) = z.as_mut_slice().split_at_mut(l0 * m);
+            for jj in 0..q {
+                let col = &mut right[jj * m..(jj + 1) * m];
+                for t in 0..l0 {
+                    let rt = r[(t, l0 + jj)];
+                    if rt != 0.0 {
+                        for (x, y) in col.iter_mut().zip(&left[t * m..(t + 1) * m]) {
+                            *x -= rt * y;
+                        }
+                    }
+                }
+            }
+        }
+        for &(k0, p) in sb.iter().rev() {
+            let resonance = |pivot| Resonance {
+                pivot,
+                lambda: block_eigenvalue(s, k0, p),
+                mu: block_eigenvalue(r, l0, q),
+            };
+            let mut x = [0.0f64; 4];
+            if p == 1 && q == 1 {
+                let k = s[(k0, k0)] + r[(l0, l0)];
+                let a = k.abs();
+                if a.is_nan() {
+                    return Err(resonance(0.0));
+                }
+                if a <= threshold {
+                    return Err(resonance(a));
+                }
+                x[0] = z[(k0, l0)] / k;
+            } else {
+                let mut kk = [[0.0f64; 4]; 4];
+                let mut b = [0.0f64; 4];
+                // vec is column-major: entry (i, j) of the p×q block sits at i + p·j.
+                for j in 0..q {
+                    for i in 0..p {
+                        let row = i + p * j;
+                        b[row] = z[(k0 + i, l0 + j)];
+                        for jj in 0..q {
+                            for ii in 0..p {
+                                let from_s = if jj == j { s[(k0 + i, k0 + ii)] } else { 0.0 };
+                                let from_r = if ii == i { r[(l0 + jj, l0 + j)] } else { 0.0 };
+                                kk[row][ii + p * jj] = from_s + from_r;
+                            }
+                        }
+                    }
+                }
+                x = solve_small(&mut kk, &mut b, p * q, threshold).map_err(resonance)?;
+            }
+            // Store the block and update the rows above it: Z[0..k0, l] −= S[0..k0, k]·X.
+            for jj in 0..q {
+                let col = &mut z.as_mut_slice()[(l0 + jj) * m..(l0 + jj + 1) * m];
+                for ii in 0..p {
+                    let xv = x[ii + p * jj];
+                    col[k0 + ii] = xv;
+                    if xv != 0.0 {
+                        let sc = &sd[(k0 + ii) * m..(k0 + ii) * m + k0];
+                        for (zi, si) in col[..k0].iter_mut().zip(sc) {
+                            *zi -= xv * si;
+                        }
+                    }
+                }
             }
         }
     }
