@@ -7,3 +7,4 @@ pub mod files;
 pub mod output;
 pub mod parse;
 pub mod run;
+pub mod session_log;

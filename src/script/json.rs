@@ -8,7 +8,7 @@
 //! [`EXTRA`].
 
 use super::types::{Complex, ComplexMatrix, Matrix};
-use rhai::{Array, Dynamic, Map, FLOAT, INT};
+use rhai::{Array, Dynamic, Map};
 use serde_json::{json, Value};
 
 /// Extension point for types defined elsewhere (models, responses …).
@@ -63,13 +63,13 @@ pub fn encode(v: &Dynamic) -> Value {
                 .collect(),
         );
     }
-    if let Some(x) = v.clone().try_cast::<FLOAT>() {
+    if let Ok(x) = v.as_float() {
         return float(x);
     }
-    if let Some(i) = v.clone().try_cast::<INT>() {
+    if let Ok(i) = v.as_int() {
         return json!(i);
     }
-    if let Some(b) = v.clone().try_cast::<bool>() {
+    if let Ok(b) = v.as_bool() {
         return json!(b);
     }
     if v.is_string() {

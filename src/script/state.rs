@@ -9,6 +9,7 @@ use crate::display::Style;
 use crate::notebook::output::Output;
 use crate::sandbox::{Limits, Sandbox};
 use rhai::NativeCallContext;
+use std::sync::atomic::AtomicU64;
 use std::sync::{Arc, Mutex, MutexGuard};
 
 /// State of one session, shared by its built-ins.
@@ -21,6 +22,9 @@ pub struct SessionState {
     pub sandbox: Sandbox,
     /// Resource limits of this session.
     pub limits: Limits,
+    /// Operations counted so far in the current evaluation (kept by `on_progress`; used
+    /// to find the line of a caught panic).
+    pub operations: AtomicU64,
 }
 
 /// A clonable handle, stored in the engine's default tag.
@@ -42,6 +46,7 @@ impl SessionState {
             records: Mutex::new(Vec::new()),
             sandbox,
             limits,
+            operations: AtomicU64::new(0),
         }
     }
 
