@@ -151,3 +151,18 @@ fn a_panicking_builtin_is_an_internal_error_naming_its_line() {
     let e = r.expect_err("panics inside script functions too");
     assert!(e.internal && e.line.is_some(), "{e:?}");
 }
+
+#[test]
+fn deeply_nested_data_is_refused_by_the_encoders_and_shown_shortened() {
+    let mut s = session(Limits::default());
+    let _ = s
+        .eval("let a = []; for i in 0..2000 { a = [a]; }")
+        .expect("build");
+    let e = error_of(&mut s, "to_json(a)");
+    assert!(e.message.contains("deeper than 256"), "{}", e.message);
+    let e = error_of(&mut s, "record(\"a\", a)");
+    assert!(e.message.contains("deeper than 256"), "{}", e.message);
+    let v = s.eval("a").expect("value");
+    let shown = s.display(&v);
+    assert!(shown.contains('…') && shown.len() < 200, "{shown}");
+}

@@ -126,6 +126,19 @@ fn import_escape_is_refused() {
         ),
         "import",
     );
+    // Odd module names are plain errors, never a crash or a read outside.
+    for odd in [
+        "\"\"",
+        "\"\\u0000x\"",
+        "\"*\"",
+        "\"~/x\"",
+        "\"sub/\"",
+        "\"..\"",
+        "\"C:\\\\x\"",
+    ] {
+        let out = run(&p, &format!("import {odd} as m;"), &[]);
+        assert_eq!(out.status.code(), Some(1), "import {odd}");
+    }
     // And a module inside the tree imports fine.
     std::fs::write(p.join("sub/helpers.sbook"), "fn twice(x) { 2 * x }\n").expect("module");
     allowed(&run(

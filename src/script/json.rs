@@ -44,6 +44,37 @@ pub fn complex(z: nalgebra::Complex<f64>) -> Value {
     json!({"re": float(z.re), "im": float(z.im)})
 }
 
+/// Deepest nesting of arrays and maps that `to_json` and `record` encode (the encoding,
+/// its text and its later drop are all recursive).
+pub const MAX_NESTING: usize = 256;
+
+/// Whether `v` nests arrays and maps deeper than `max` levels (looks no deeper than that).
+pub fn nested_deeper_than(v: &Dynamic, max: usize) -> bool {
+    if !(v.is_array() || v.is_map()) {
+        return false;
+    }
+    if max == 0 {
+        return true;
+    }
+    if let Some(a) = v.read_lock::<Array>() {
+        return a.iter().any(|x| nested_deeper_than(x, max - 1));
+    }
+    if let Some(m) = v.read_lock::<Map>() {
+        return m.values().any(|x| nested_deeper_than(x, max - 1));
+    }
+    false
+}
+
+/// Encodes a value for `to_json`/`record`, refusing pathologically deep nesting.
+pub fn encode_checked(v: &Dynamic, fname: &str) -> Result<Value, String> {
+    if nested_deeper_than(v, MAX_NESTING) {
+        return Err(format!(
+            "{fname}: the value nests arrays or maps deeper than {MAX_NESTING} levels"
+        ));
+    }
+    Ok(encode(v))
+}
+
 /// Encodes any script value.
 pub fn encode(v: &Dynamic) -> Value {
     if v.is_unit() {
