@@ -58,6 +58,16 @@ pub struct Session {
     state: Arc<SessionState>,
 }
 
+impl Drop for Session {
+    /// The scope's values are dropped on a large stack too (deeply nested data drops
+    /// recursively).
+    fn drop(&mut self) {
+        let scope = std::mem::take(&mut self.scope);
+        let stack = guard::stack_for(self.state.limits.call_depth);
+        let _ = guard::run(stack, move || drop(scope));
+    }
+}
+
 impl Session {
     /// A new session.
     pub fn new(options: &SessionOptions) -> Self {
@@ -87,16 +97,27 @@ impl Session {
     /// The evaluation runs under the panic guard (see [`guard`]): on a large stack, and a
     /// panic becomes an internal error naming the line it happened on.
     pub fn eval(&mut self, code: &str) -> Result<Dynamic, ScriptError> {
-        let snapshot = self.scope.clone();
         self.state
             .operations
             .store(0, std::sync::atomic::Ordering::Relaxed);
         let limits = self.state.limits.clone();
         let stack = guard::stack_for(limits.call_depth);
-        match guard::run(stack, || limits.enter(|| self.eval_unguarded(code))) {
+        // The scope as it was, for locating a panic. Taken and dropped on the evaluation
+        // thread: cloning and dropping deeply nested data needs its large stack.
+        let mut snapshot: Option<Scope<'static>> = None;
+        let result = guard::run(stack, || {
+            snapshot.replace(self.scope.clone());
+            let r = limits.enter(|| self.eval_unguarded(code));
+            drop(snapshot.take());
+            r
+        });
+        match result {
             Ok(r) => r,
             Err(what) => {
-                let (line, column) = self.locate_panic(code, snapshot);
+                let (line, column) = match snapshot {
+                    Some(snapshot) => self.locate_panic(code, snapshot),
+                    None => (None, None),
+                };
                 Err(ScriptError {
                     message: format!(
                         "internal error: statebook failed on this input ({what})\nhint: please \
@@ -141,11 +162,11 @@ impl Session {
             return (None, None);
         }
         let kept = self.state.take_outputs();
-        self.scope = snapshot;
         self.engine.set_max_operations(ops - 1);
         let limits = self.state.limits.clone();
         let stack = guard::stack_for(limits.call_depth);
         let replay = guard::run(stack, || {
+            self.scope = snapshot;
             limits.enter(|| {
                 let ast = self.engine.compile_with_scope(&self.scope, code).ok()?;
                 let merged = self.lib.merge(&ast);

@@ -166,3 +166,31 @@ fn deeply_nested_data_is_refused_by_the_encoders_and_shown_shortened() {
     let shown = s.display(&v);
     assert!(shown.contains('…') && shown.len() < 200, "{shown}");
 }
+
+#[test]
+fn printing_and_comparing_deeply_nested_data_never_overflows() {
+    let mut s = session(Limits::default());
+    let t = Instant::now();
+    let _ = s
+        .eval("let a = []; for i in 0..3000 { a = [a]; } let m = #{}; for i in 0..1000 { m = #{ x: m }; }")
+        .expect("build");
+    let _ = s
+        .eval("print(a); print(m); let t = `${a} ${m}`; debug(a);")
+        .expect("print");
+    let printed = s.take_outputs();
+    assert!(format!("{printed:?}").contains("[…]"), "{printed:?}");
+    let e = error_of(&mut s, "a == a");
+    assert!(e.message.contains("deeper than"), "{}", e.message);
+    let e = error_of(&mut s, "m != m");
+    assert!(e.message.contains("deeper than"), "{}", e.message);
+    // Ordinary data prints and compares as before.
+    let v = s
+        .eval("let b = [1, 2.5, \"x\", [true, #{k: 1}]]; `${b}` + (b == [1, 2.5, \"x\", [true, #{k: 1}]])")
+        .expect("ordinary");
+    assert_eq!(
+        v.into_string().ok().as_deref(),
+        Some("[1, 2.5, \"x\", [true, #{\"k\": 1}]]true")
+    );
+    let _ = s.eval("a = 0; m = 0;").expect("drop");
+    assert!(t.elapsed() < Duration::from_secs(60), "{:?}", t.elapsed());
+}

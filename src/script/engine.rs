@@ -51,6 +51,7 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::output::register(&mut e, state);
     builtins::plot::register(&mut e);
     register_display(&mut e, state);
+    super::nesting::register(&mut e);
     super::stdlib::load(&mut e);
     e
 }
