@@ -7,6 +7,7 @@
 #![deny(missing_docs)]
 
 pub mod display;
+pub mod guard;
 pub mod notebook;
 pub mod numeric;
 pub mod plot;
@@ -57,6 +58,16 @@ pub struct Session {
     state: Arc<SessionState>,
 }
 
+impl Drop for Session {
+    /// The scope's values are dropped on a large stack too (deeply nested data drops
+    /// recursively).
+    fn drop(&mut self) {
+        let scope = std::mem::take(&mut self.scope);
+        let stack = guard::stack_for(self.state.limits.call_depth);
+        let _ = guard::run(stack, move || drop(scope));
+    }
+}
+
 impl Session {
     /// A new session.
     pub fn new(options: &SessionOptions) -> Self {
@@ -83,7 +94,45 @@ impl Session {
     /// Evaluates a piece of code in the session's scope and returns the value of its last
     /// expression. Functions it defines stay callable by later pieces; modules it imports
     /// stay available under their alias.
+    ///
+    /// The evaluation runs under the panic guard (see [`guard`]): on a large stack, and a
+    /// panic becomes an internal error naming the line it happened on.
     pub fn eval(&mut self, code: &str) -> Result<Dynamic, ScriptError> {
+        self.state
+            .operations
+            .store(0, std::sync::atomic::Ordering::Relaxed);
+        let limits = self.state.limits.clone();
+        let stack = guard::stack_for(limits.call_depth);
+        // The scope as it was, for locating a panic. Taken and dropped on the evaluation
+        // thread: cloning and dropping deeply nested data needs its large stack.
+        let mut snapshot: Option<Scope<'static>> = None;
+        let result = guard::run(stack, || {
+            snapshot.replace(self.scope.clone());
+            let r = limits.enter(|| self.eval_unguarded(code));
+            drop(snapshot.take());
+            r
+        });
+        match result {
+            Ok(r) => r,
+            Err(what) => {
+                let (line, column) = match snapshot {
+                    Some(snapshot) => self.locate_panic(code, snapshot),
+                    None => (None, None),
+                };
+                Err(ScriptError {
+                    message: format!(
+                        "internal error: statebook failed on this input ({what})\nhint: please \
+                         report it with the analysis file"
+                    ),
+                    line,
+                    column,
+                    internal: true,
+                })
+            }
+        }
+    }
+
+    fn eval_unguarded(&mut self, code: &str) -> Result<Dynamic, ScriptError> {
         let ast = self
             .engine
             .compile_with_scope(&self.scope, code)
@@ -91,33 +140,58 @@ impl Session {
         self.keep_imports(code);
         let merged = self.lib.merge(&ast);
         self.state.sweep.set_library(&merged);
-        let engine = &self.engine;
-        let scope = &mut self.scope;
-        let result = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-            engine.eval_ast_with_scope::<Dynamic>(scope, &merged)
-        }));
+        let result = self
+            .engine
+            .eval_ast_with_scope::<Dynamic>(&mut self.scope, &merged);
         let mut lib = merged;
         lib.clear_statements();
         self.lib = lib;
-        match result {
-            Ok(Ok(v)) => Ok(v),
-            Ok(Err(e)) => Err(ScriptError::from_eval(&e)),
-            Err(panic) => {
-                let what = panic
-                    .downcast_ref::<String>()
-                    .cloned()
-                    .or_else(|| panic.downcast_ref::<&str>().map(|s| s.to_string()))
-                    .unwrap_or_else(|| "unknown".into());
-                Err(ScriptError {
-                    message: format!(
-                        "internal error: statebook failed on this input ({what})\nhint: please \
-                         report it with the analysis file"
-                    ),
-                    line: None,
-                    column: None,
-                    internal: true,
-                })
-            }
+        result.map_err(|e| ScriptError::from_eval(&e))
+    }
+
+    /// Finds where a caught panic happened: re-runs the code from the scope it started
+    /// with, stopped by the operation limit just before the operation that panicked, and
+    /// takes that stop's position. The re-run's outputs are dropped; its file writes
+    /// repeat the original's (same bytes, written atomically).
+    fn locate_panic(
+        &mut self,
+        code: &str,
+        snapshot: Scope<'static>,
+    ) -> (Option<usize>, Option<usize>) {
+        use std::sync::atomic::Ordering;
+        let ops = self.state.operations.load(Ordering::Relaxed);
+        if ops < 2 {
+            return (None, None);
+        }
+        let kept = self.state.take_outputs();
+        self.engine.set_max_operations(ops - 1);
+        let limits = self.state.limits.clone();
+        let stack = guard::stack_for(limits.call_depth);
+        let replay = guard::run(stack, || {
+            self.scope = snapshot;
+            limits.enter(|| {
+                let ast = self.engine.compile_with_scope(&self.scope, code).ok()?;
+                let merged = self.lib.merge(&ast);
+                let e = self
+                    .engine
+                    .eval_ast_with_scope::<Dynamic>(&mut self.scope, &merged)
+                    .err()?;
+                let mut inner = &*e;
+                while let rhai::EvalAltResult::ErrorInFunctionCall(_, _, i, _) = inner {
+                    inner = i;
+                }
+                matches!(inner, rhai::EvalAltResult::ErrorTooManyOperations(_))
+                    .then(|| ScriptError::from_eval(&e))
+            })
+        });
+        self.engine.set_max_operations(self.state.limits.operations);
+        let _ = self.state.take_outputs();
+        for o in kept {
+            self.state.push(o);
+        }
+        match replay {
+            Ok(Some(e)) => (e.line, e.column),
+            _ => (None, None),
         }
     }
 
@@ -190,6 +264,13 @@ impl Session {
     /// The cases of the sweeps run so far (kept only when planned with `keep_log`).
     pub fn sweep_logs(&self) -> Vec<script::sweep::log::SweepLog> {
         self.state.sweep.logs()
+    }
+
+    /// The engine itself, for tests that need a deliberately broken built-in (the panic
+    /// guard's tests register one). Not part of the stable API.
+    #[doc(hidden)]
+    pub fn engine_mut(&mut self) -> &mut Engine {
+        &mut self.engine
     }
 
     /// Names of the variables in scope (for completion).

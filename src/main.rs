@@ -75,6 +75,17 @@ enum Command {
         /// The file to create (must not exist).
         file: PathBuf,
     },
+    /// Turn a REPL session log into an analysis file (keeps the inputs that ran).
+    FromSession {
+        /// The session log (under .statebook/sessions/ where the REPL ran).
+        log: PathBuf,
+        /// The analysis file to write (must not exist).
+        #[arg(short, long)]
+        output: PathBuf,
+        /// Title of the analysis (default: from the output file's name).
+        #[arg(long)]
+        title: Option<String>,
+    },
 }
 
 #[derive(Clone, Copy, clap::ValueEnum)]
@@ -118,7 +129,7 @@ impl Common {
             limits.operations = v;
         }
         if let Some(v) = self.max_call_depth {
-            limits.call_depth = v;
+            limits.call_depth = v.min(statebook::guard::MAX_CALL_DEPTH);
         }
         if let Some(v) = self.max_string_size {
             limits.string_size = v;
@@ -149,8 +160,38 @@ fn folder_of(file: &Path) -> PathBuf {
 }
 
 fn main() -> ExitCode {
+    statebook::guard::install_panic_hook();
     let cli = Cli::parse();
-    let code = match cli.command {
+    // Everything runs on a thread with a large stack, so deep (but limited) recursion in
+    // scripts, nested data and their display never reach the end of the native stack.
+    let worker = std::thread::Builder::new()
+        .name("statebook".into())
+        .stack_size(statebook::guard::STACK_BYTES)
+        .spawn(move || dispatch(cli));
+    let code = match worker.map(|w| w.join()) {
+        Ok(Ok(code)) => code,
+        Ok(Err(_)) => 1,
+        Err(e) => {
+            eprintln!("error: cannot start: {e}");
+            1
+        }
+    };
+    ExitCode::from(code)
+}
+
+fn dispatch(cli: Cli) -> u8 {
+    if cli
+        .common
+        .max_call_depth
+        .is_some_and(|d| d > statebook::guard::MAX_CALL_DEPTH)
+    {
+        eprintln!(
+            "error: --max-call-depth may be at most {} (each level needs native stack)",
+            statebook::guard::MAX_CALL_DEPTH
+        );
+        return 2;
+    }
+    match cli.command {
         None => statebook::repl::start(cli.common_options()),
         Some(Command::Run {
             file,
@@ -171,13 +212,17 @@ fn main() -> ExitCode {
         Some(Command::Check { file, tolerance }) => cmd_check(&file, tolerance, &cli.common),
         Some(Command::Help { name }) => cmd_help(name.as_deref()),
         Some(Command::New { file }) => cmd_new(&file),
-    };
-    ExitCode::from(code)
+        Some(Command::FromSession { log, output, title }) => {
+            cmd_from_session(&log, &output, title.as_deref())
+        }
+    }
 }
 
 impl Cli {
+    /// The REPL's sandbox is rooted at the working directory.
     fn common_options(&self) -> SessionOptions {
-        self.common.options(Path::new("."))
+        let cwd = std::env::current_dir().unwrap_or_else(|_| PathBuf::from("."));
+        self.common.options(&cwd)
     }
 }
 
@@ -381,4 +426,50 @@ fn cmd_new(file: &Path) -> u8 {
             1
         }
     }
+}
+
+fn cmd_from_session(log: &Path, output: &Path, title: Option<&str>) -> u8 {
+    use statebook::notebook::session_log;
+    if output.exists() {
+        eprintln!(
+            "error: {} already exists; statebook from-session never overwrites a file",
+            output.display()
+        );
+        return 1;
+    }
+    let (text, _) = match files::read_analysis(log) {
+        Ok(v) => v,
+        Err(m) => {
+            eprintln!("error: {m}");
+            return 1;
+        }
+    };
+    let stem = output
+        .file_stem()
+        .map(|s| s.to_string_lossy().replace(['-', '_'], " "))
+        .unwrap_or_default();
+    let title = title.map(str::to_string).unwrap_or(stem);
+    let (analysis, summary) =
+        match session_log::to_analysis(&text, &log.display().to_string(), &title) {
+            Ok(v) => v,
+            Err(m) => {
+                eprintln!("error: {}: {m}", log.display());
+                return 1;
+            }
+        };
+    if let Err(e) = statebook::sandbox::write_atomic(output, analysis.as_bytes()) {
+        eprintln!("error: cannot write {}: {e}", output.display());
+        return 1;
+    }
+    println!(
+        "wrote {} ({} input{} kept, {} left out)",
+        output.display(),
+        summary.kept,
+        if summary.kept == 1 { "" } else { "s" },
+        summary.left_out.len()
+    );
+    for (line, why) in &summary.left_out {
+        println!("  left out: the input at {}:{line} ({why})", log.display());
+    }
+    0
 }

@@ -20,9 +20,11 @@ pub struct Sandbox {
 /// Resource limits for one session; defaults a normal analysis never meets.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Limits {
-    /// Script operations per cell (an endless loop stops after this many).
+    /// Script operations per cell (an endless loop stops after this many: about 0.1–1 s
+    /// for simple loop bodies, a few seconds for string-heavy ones, in release builds).
     pub operations: u64,
-    /// Depth of nested function calls.
+    /// Depth of nested function calls (each evaluation's native stack is sized for it, so
+    /// deep recursion is this error and never a stack overflow; see `guard`).
     pub call_depth: usize,
     /// Longest string, in bytes.
     pub string_size: usize,
@@ -37,12 +39,49 @@ pub struct Limits {
 impl Default for Limits {
     fn default() -> Self {
         Limits {
-            operations: 200_000_000,
+            operations: 30_000_000,
             call_depth: 200,
             string_size: 64 * 1024 * 1024,
-            array_size: 50_000_000,
+            array_size: 10_000_000,
             matrix_entries: 25_000_000,
             timeout_seconds: 0.0,
+        }
+    }
+}
+
+thread_local! {
+    /// The limits of the evaluation running on this thread (each evaluation runs on a
+    /// thread of its own; see `guard`), for checks in code that has no engine context.
+    static ACTIVE: std::cell::Cell<Option<(usize, usize)>> = const { std::cell::Cell::new(None) };
+}
+
+impl Limits {
+    /// Runs `f` with these limits as the active ones of this thread (see [`Limits::active`]).
+    pub fn enter<R>(&self, f: impl FnOnce() -> R) -> R {
+        let before = ACTIVE.with(|a| a.replace(Some((self.matrix_entries, self.array_size))));
+        let r = f();
+        ACTIVE.with(|a| a.set(before));
+        r
+    }
+
+    /// The matrix-entry and array-size limits of the evaluation on this thread (the
+    /// defaults outside one).
+    pub fn active() -> (usize, usize) {
+        ACTIVE.with(|a| a.get()).unwrap_or_else(|| {
+            let d = Limits::default();
+            (d.matrix_entries, d.array_size)
+        })
+    }
+
+    /// Refuses, before allocating, a `rows`×`cols` matrix larger than the active limit.
+    pub fn check_matrix(what: &str, rows: usize, cols: usize) -> Result<(), String> {
+        let (limit, _) = Limits::active();
+        match rows.checked_mul(cols) {
+            Some(n) if n <= limit => Ok(()),
+            _ => Err(format!(
+                "{what}: a {rows}×{cols} matrix exceeds the size limit of {limit} entries\nhint: \
+                 raise it with --max-matrix-entries if you really mean it"
+            )),
         }
     }
 }
@@ -175,7 +214,10 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> std::io::Result<()> {
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_default();
-    let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
+    // Unique per process and per write, so two sessions (threads) never share one.
+    static COUNTER: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
+    let k = COUNTER.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+    let tmp = dir.join(format!(".{name}.tmp-{}-{k}", std::process::id()));
     {
         let mut f = std::fs::File::create(&tmp)?;
         f.write_all(bytes)?;

@@ -7,8 +7,8 @@ use std::path::Path;
 /// Largest analysis file accepted (bytes).
 pub const MAX_FILE_BYTES: u64 = 16 * 1024 * 1024;
 
-/// Reads an analysis file: refuses missing, enormous and non-UTF-8 files with a clear
-/// message. Returns the text and its bytes' SHA-256.
+/// Reads an analysis file: refuses missing, empty, enormous and non-UTF-8 files with a
+/// clear message. Returns the text and its bytes' SHA-256.
 pub fn read_analysis(path: &Path) -> Result<(String, String), String> {
     let meta = std::fs::metadata(path)
         .map_err(|e| format!("cannot read {}: {}", path.display(), io_words(&e)))?;
@@ -36,6 +36,13 @@ pub fn read_analysis(path: &Path) -> Result<(String, String), String> {
             e.utf8_error().valid_up_to()
         )
     })?;
+    if text.trim().is_empty() {
+        return Err(format!(
+            "{} is empty; an analysis file needs at least one cell\nhint: `statebook new \
+             FILE` writes a starter file",
+            path.display()
+        ));
+    }
     Ok((text, sha))
 }
 

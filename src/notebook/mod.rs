@@ -7,4 +7,5 @@ pub mod files;
 pub mod output;
 pub mod parse;
 pub mod run;
+pub mod session_log;
 pub mod sweeps;

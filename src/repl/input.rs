@@ -54,7 +54,9 @@ pub fn is_incomplete(code: &str) -> bool {
 }
 
 /// Opens a new session log under `dir` (`session-<time>.sbook`); every accepted input is
-/// appended and flushed at once, so a crash or a closed terminal loses nothing.
+/// appended and flushed at once, so a crash or a closed terminal loses nothing (format:
+/// `notebook::session_log`). The log is appended to, so it is the one file statebook
+/// writes without a temporary file and a rename.
 pub fn open_session_log(dir: &Path) -> Option<std::fs::File> {
     use std::io::Write;
     std::fs::create_dir_all(dir).ok()?;

@@ -8,6 +8,7 @@ mod complete;
 pub mod input;
 
 use crate::notebook::output::Output;
+use crate::notebook::session_log;
 use crate::{Session, SessionOptions};
 use complete::ReplHelper;
 use input::{is_incomplete, Command};
@@ -46,7 +47,8 @@ impl Repl {
         }
     }
 
-    /// Runs one complete input; prints its outputs; returns false on error.
+    /// Runs one complete input; prints its outputs; returns false on error. Script
+    /// inputs are logged before they run and their outcome after.
     fn run(&mut self, code: &str, out: &mut dyn Write, err: &mut dyn Write) -> bool {
         match input::command(code) {
             Some(Command::Help(name)) => {
@@ -62,6 +64,7 @@ impl Repl {
             }
             Some(Command::Quit) | None => {}
         }
+        self.log_input(code);
         let result = self.session.eval(code);
         let mut outputs = self.session.take_outputs();
         let ok = match result {
@@ -70,10 +73,15 @@ impl Repl {
                 true
             }
             Err(e) => {
-                outputs.push(Output::Error(e.render("<repl>", code)));
+                let text = e.render("<repl>", code);
+                self.log_status(Some(&text));
+                outputs.push(Output::Error(text));
                 false
             }
         };
+        if ok {
+            self.log_status(None);
+        }
         for o in outputs {
             self.print_output(o, out, err);
         }
@@ -118,9 +126,19 @@ impl Repl {
         }
     }
 
+    /// Appends an input to the session log, flushed at once (before it runs, so that
+    /// even a crash while running it loses nothing).
     fn log_input(&mut self, code: &str) {
         if let Some(f) = self.log.as_mut() {
-            let _ = writeln!(f, "{code}");
+            let _ = writeln!(f, "{}\n{code}", session_log::INPUT);
+            let _ = f.flush();
+        }
+    }
+
+    /// Appends how the last logged input ended.
+    fn log_status(&mut self, error: Option<&str>) {
+        if let Some(f) = self.log.as_mut() {
+            let _ = writeln!(f, "{}", session_log::status_line(error));
             let _ = f.flush();
         }
     }
@@ -159,7 +177,6 @@ impl Repl {
                     if matches!(input::command(&line), Some(Command::Quit)) {
                         break;
                     }
-                    self.log_input(&line);
                     let (mut o, mut e) = (std::io::stdout(), std::io::stderr());
                     self.run(&line, &mut o, &mut e);
                 }
@@ -175,7 +192,11 @@ impl Repl {
             if let Some(dir) = h.parent() {
                 let _ = std::fs::create_dir_all(dir);
             }
-            let _ = editor.save_history(h);
+            // Through a temporary file and a rename, like every file statebook writes.
+            let tmp = h.with_extension("tmp");
+            if editor.save_history(&tmp).is_ok() {
+                let _ = std::fs::rename(&tmp, h);
+            }
         }
         0
     }
@@ -185,6 +206,7 @@ impl Repl {
     }
 
     fn piped(&mut self) -> u8 {
+        self.log = input::open_session_log(&self.session_log_dir());
         let stdin = std::io::stdin();
         let (mut out, mut err) = (std::io::stdout().lock(), std::io::stderr().lock());
         let mut buffer = String::new();

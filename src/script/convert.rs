@@ -60,9 +60,9 @@ pub fn type_name(v: &Dynamic) -> String {
 
 /// A number (int or float).
 pub fn to_f64(v: &Dynamic, fname: &str, arg: &str) -> Rr<f64> {
-    if let Some(x) = v.clone().try_cast::<FLOAT>() {
+    if let Ok(x) = v.as_float() {
         Ok(x)
-    } else if let Some(i) = v.clone().try_cast::<INT>() {
+    } else if let Ok(i) = v.as_int() {
         Ok(i as f64)
     } else {
         Err(fail(format!(
@@ -118,15 +118,27 @@ pub fn to_f64_vec(v: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<f64>> {
         .collect()
 }
 
+/// A list of finite numbers: NaN or an infinity is refused, naming the entry.
+pub fn to_finite_vec(v: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<f64>> {
+    let x = to_f64_vec(v, fname, arg)?;
+    if let Some(k) = x.iter().position(|x| !x.is_finite()) {
+        return Err(fail(format!(
+            "{fname}: {arg}[{k}] is {}, expected a finite number",
+            x[k]
+        )));
+    }
+    Ok(x)
+}
+
 /// A matrix: a `Matrix`, an array of arrays of numbers (rows), or a single number.
 pub fn to_matrix(v: &Dynamic, fname: &str, arg: &str) -> Rr<DMatrix<f64>> {
     if let Some(m) = v.read_lock::<Matrix>() {
         return Ok(m.0.clone());
     }
-    if let Some(x) = v.clone().try_cast::<FLOAT>() {
+    if let Ok(x) = v.as_float() {
         return Ok(DMatrix::from_element(1, 1, x));
     }
-    if let Some(i) = v.clone().try_cast::<INT>() {
+    if let Ok(i) = v.as_int() {
         return Ok(DMatrix::from_element(1, 1, i as f64));
     }
     if let Some(a) = v.read_lock::<Array>() {
@@ -138,10 +150,22 @@ pub fn to_matrix(v: &Dynamic, fname: &str, arg: &str) -> Rr<DMatrix<f64>> {
     )))
 }
 
+/// Refuses, before allocating, a `rows`×`cols` result larger than the session's matrix
+/// size limit (`--max-matrix-entries`).
+pub fn check_entries(fname: &str, rows: usize, cols: usize) -> Rr<()> {
+    crate::sandbox::Limits::check_matrix(fname, rows, cols).map_err(fail)
+}
+
 /// A matrix from an array of rows, each an array of numbers of equal length.
 pub fn rows_to_matrix(a: &Array, fname: &str, arg: &str) -> Rr<DMatrix<f64>> {
     if a.is_empty() {
         return Ok(DMatrix::zeros(0, 0));
+    }
+    if let Some(first) = a
+        .first()
+        .and_then(|r| r.read_lock::<Array>().map(|r| r.len()))
+    {
+        check_entries(fname, a.len(), first)?;
     }
     let mut rows: Vec<Vec<f64>> = Vec::with_capacity(a.len());
     for (i, r) in a.iter().enumerate() {

@@ -7,6 +7,7 @@ use super::state::{SessionState, StateHandle};
 use super::types::{Complex, ComplexMatrix, Matrix};
 use crate::notebook::output::Output;
 use rhai::{Dynamic, Engine, EvalAltResult, Module, ModuleResolver, Position, Shared};
+use std::sync::atomic::Ordering;
 use std::sync::Arc;
 use std::time::Instant;
 
@@ -28,15 +29,16 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     e.on_print(move |t| s.push(Output::Text(t.to_string())));
     let s = state.clone();
     e.on_debug(move |t, _, _| s.push(Output::Text(t.to_string())));
-    if let Some(deadline) = deadline {
-        e.on_progress(move |ops| {
-            if ops % 4096 == 0 && Instant::now() >= deadline {
+    let s = state.clone();
+    e.on_progress(move |ops| {
+        s.operations.store(ops, Ordering::Relaxed);
+        match deadline {
+            Some(deadline) if ops % 4096 == 0 && Instant::now() >= deadline => {
                 Some(Dynamic::from("the run exceeded its --timeout".to_string()))
-            } else {
-                None
             }
-        });
-    }
+            _ => None,
+        }
+    });
     e.set_module_resolver(SandboxResolver {
         state: state.clone(),
     });
@@ -55,6 +57,7 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::model_plots::register(&mut e);
     builtins::sweep::register(&mut e);
     register_display(&mut e, state);
+    super::nesting::register(&mut e);
     super::stdlib::load(&mut e);
     e
 }

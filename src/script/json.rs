@@ -8,7 +8,7 @@
 //! [`EXTRA`].
 
 use super::types::{Complex, ComplexMatrix, Matrix};
-use rhai::{Array, Dynamic, Map, FLOAT, INT};
+use rhai::{Array, Dynamic, Map};
 use serde_json::{json, Value};
 
 /// Extension point for types defined elsewhere (models, responses …).
@@ -44,6 +44,37 @@ pub fn complex(z: nalgebra::Complex<f64>) -> Value {
     json!({"re": float(z.re), "im": float(z.im)})
 }
 
+/// Deepest nesting of arrays and maps that `to_json` and `record` encode (the encoding,
+/// its text and its later drop are all recursive).
+pub const MAX_NESTING: usize = 256;
+
+/// Whether `v` nests arrays and maps deeper than `max` levels (looks no deeper than that).
+pub fn nested_deeper_than(v: &Dynamic, max: usize) -> bool {
+    if !(v.is_array() || v.is_map()) {
+        return false;
+    }
+    if max == 0 {
+        return true;
+    }
+    if let Some(a) = v.read_lock::<Array>() {
+        return a.iter().any(|x| nested_deeper_than(x, max - 1));
+    }
+    if let Some(m) = v.read_lock::<Map>() {
+        return m.values().any(|x| nested_deeper_than(x, max - 1));
+    }
+    false
+}
+
+/// Encodes a value for `to_json`/`record`, refusing pathologically deep nesting.
+pub fn encode_checked(v: &Dynamic, fname: &str) -> Result<Value, String> {
+    if nested_deeper_than(v, MAX_NESTING) {
+        return Err(format!(
+            "{fname}: the value nests arrays or maps deeper than {MAX_NESTING} levels"
+        ));
+    }
+    Ok(encode(v))
+}
+
 /// Encodes any script value.
 pub fn encode(v: &Dynamic) -> Value {
     if v.is_unit() {
@@ -63,13 +94,13 @@ pub fn encode(v: &Dynamic) -> Value {
                 .collect(),
         );
     }
-    if let Some(x) = v.clone().try_cast::<FLOAT>() {
+    if let Ok(x) = v.as_float() {
         return float(x);
     }
-    if let Some(i) = v.clone().try_cast::<INT>() {
+    if let Ok(i) = v.as_int() {
         return json!(i);
     }
-    if let Some(b) = v.clone().try_cast::<bool>() {
+    if let Ok(b) = v.as_bool() {
         return json!(b);
     }
     if v.is_string() {

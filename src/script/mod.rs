@@ -6,6 +6,7 @@ pub mod convert;
 pub mod docs;
 pub mod engine;
 pub mod json;
+pub mod nesting;
 pub mod show;
 pub mod state;
 pub mod stdlib;

@@ -3,7 +3,7 @@
 
 use super::types::{Complex, ComplexMatrix, Matrix};
 use crate::display::{self, Style};
-use rhai::{Array, Dynamic, Map, FLOAT, INT};
+use rhai::{Array, Dynamic, Map};
 
 /// Extension point: model types and others register their display here.
 pub type Displayer = fn(&Dynamic, Style) -> Option<String>;
@@ -11,8 +11,27 @@ pub type Displayer = fn(&Dynamic, Style) -> Option<String>;
 /// Displayers of types defined outside this file (models, responses, figures …).
 pub const EXTRA: &[Displayer] = &[crate::script::builtins::display_extra];
 
+/// Deepest nesting of arrays and maps shown; deeper parts show as `…` (keeps the display
+/// of pathological data linear in its size).
+const MAX_DEPTH: usize = 32;
+
+thread_local! {
+    static DEPTH: std::cell::Cell<usize> = const { std::cell::Cell::new(0) };
+}
+
 /// Formats a value for the user.
 pub fn format(v: &Dynamic, style: Style) -> String {
+    let depth = DEPTH.with(|d| d.get());
+    if depth >= MAX_DEPTH && (v.is_array() || v.is_map()) {
+        return "…".into();
+    }
+    DEPTH.with(|d| d.set(depth + 1));
+    let s = format_at_depth(v, style);
+    DEPTH.with(|d| d.set(depth));
+    s
+}
+
+fn format_at_depth(v: &Dynamic, style: Style) -> String {
     if let Some(m) = v.read_lock::<Matrix>() {
         return display::real_matrix(&m.0, style);
     }
@@ -22,10 +41,10 @@ pub fn format(v: &Dynamic, style: Style) -> String {
     if let Some(m) = v.read_lock::<ComplexMatrix>() {
         return display::complex_matrix(&m.0, style);
     }
-    if let Some(x) = v.clone().try_cast::<FLOAT>() {
+    if let Ok(x) = v.as_float() {
         return display::real(x, style);
     }
-    if let Some(i) = v.clone().try_cast::<INT>() {
+    if let Ok(i) = v.as_int() {
         return i.to_string();
     }
     if let Some(a) = v.read_lock::<Array>() {

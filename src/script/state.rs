@@ -9,6 +9,7 @@ use crate::display::Style;
 use crate::notebook::output::Output;
 use crate::sandbox::{Limits, Sandbox};
 use rhai::NativeCallContext;
+use std::sync::atomic::AtomicU64;
 use std::sync::{Arc, Mutex, MutexGuard};
 
 /// State of one session, shared by its built-ins.
@@ -23,6 +24,9 @@ pub struct SessionState {
     pub limits: Limits,
     /// What the session's sweeps need (function library, shard plan, log).
     pub sweep: crate::script::sweep::context::SweepContext,
+    /// Operations counted so far in the current evaluation (kept by `on_progress`; used
+    /// to find the line of a caught panic).
+    pub operations: AtomicU64,
 }
 
 /// A clonable handle, stored in the engine's default tag.
@@ -45,6 +49,7 @@ impl SessionState {
             sandbox,
             limits,
             sweep: Default::default(),
+            operations: AtomicU64::new(0),
         }
     }
 

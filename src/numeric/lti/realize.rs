@@ -11,6 +11,9 @@ use crate::numeric::linalg::poly::{characteristic_polynomial, polynomial_from_ro
 use crate::numeric::{NumError, NumResult};
 use nalgebra::{Complex, DMatrix};
 
+/// Highest order realized from a transfer function (its companion matrix is n×n).
+pub const MAX_REALIZATION_ORDER: usize = 5000;
+
 /// A minimal state-space realization of a transfer function.
 ///
 /// With `den = sⁿ + a₁sⁿ⁻¹ + … + aₙ` and the numerator split as `b₀·den + (c₁sⁿ⁻¹ + … +
@@ -21,6 +24,12 @@ use nalgebra::{Complex, DMatrix};
 /// minimal. Cost O(n³).
 pub fn from_transfer_function(tf: &TransferFunction) -> NumResult<StateSpace> {
     let n = tf.order();
+    if n > MAX_REALIZATION_ORDER {
+        return Err(crate::numeric::NumError::TooLarge {
+            what: format!("a realization of order {n}"),
+            limit: MAX_REALIZATION_ORDER,
+        });
+    }
     let den = &tf.den;
     let mut num = vec![0.0; n + 1 - tf.num.len()];
     num.extend_from_slice(&tf.num);

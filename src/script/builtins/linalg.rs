@@ -175,6 +175,16 @@ pub fn register(engine: &mut Engine) {
                 .collect::<Rr<_>>()?;
             rows.push(row);
         }
+        // The result's size, before assembling (shapes are checked by the numerics).
+        let total_rows: usize = rows
+            .iter()
+            .filter_map(|r| r.first())
+            .map(|b| b.nrows())
+            .sum();
+        let total_cols: usize = rows
+            .first()
+            .map_or(0, |r| r.iter().map(|b| b.ncols()).sum());
+        crate::script::convert::check_entries("block", total_rows, total_cols)?;
         crate::numeric::linalg::dense::block(&rows)
             .map(matrix_value)
             .map_err(num("block"))
@@ -255,8 +265,14 @@ pub fn register(engine: &mut Engine) {
     engine.register_fn(
         "polynomial_value",
         |c: Dynamic, z: Dynamic| -> Rr<Dynamic> {
-            let c = to_f64_vec(&c, "polynomial_value", "coefficients")?;
+            let c = crate::script::convert::to_finite_vec(&c, "polynomial_value", "coefficients")?;
             let z = to_complex_vec(&Dynamic::from_array(vec![z]), "polynomial_value", "s")?;
+            if !(z[0].re.is_finite() && z[0].im.is_finite()) {
+                return Err(fail(format!(
+                    "polynomial_value: s is {}, expected a finite number",
+                    crate::display::complex(z[0].re, z[0].im, Default::default())
+                )));
+            }
             let v = poly::polynomial_eval(&c, z[0]);
             Ok(Dynamic::from(crate::script::types::Complex(v)))
         },

@@ -240,6 +240,8 @@ pub fn register(engine: &mut Engine) {
         if k > 100_000 {
             return Err(fail("markov_parameters: count must be at most 100000"));
         }
+        let each = sys.d.nrows() * sys.d.ncols();
+        crate::script::convert::check_entries("markov_parameters", k, each)?;
         Ok(sys
             .markov_parameters(k)
             .into_iter()

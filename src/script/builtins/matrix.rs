@@ -2,7 +2,8 @@
 
 use crate::numeric::linalg::ops;
 use crate::script::convert::{
-    fail, float_array, matrix_value, num, to_count, to_f64, to_f64_vec, to_matrix, Rr,
+    check_entries, fail, float_array, matrix_value, num, to_count, to_f64, to_f64_vec, to_matrix,
+    Rr,
 };
 use crate::script::docs::Doc;
 use crate::script::state;
@@ -222,6 +223,7 @@ pub fn register(engine: &mut Engine) {
             }
         }
         let x = to_f64_vec(&v, "diagonal", "list")?;
+        check_entries("diagonal", x.len(), x.len())?;
         Ok(matrix_value(DMatrix::from_diagonal(
             &nalgebra::DVector::from_vec(x),
         )))
@@ -294,6 +296,9 @@ pub fn register(engine: &mut Engine) {
         ops::sub(&a.0, &b.0).map(Matrix).map_err(num("-"))
     });
     engine.register_fn("*", |a: Matrix, b: Matrix| -> Rr<Matrix> {
+        if a.0.ncols() == b.0.nrows() {
+            check_entries("*", a.0.nrows(), b.0.ncols())?;
+        }
         ops::mul(&a.0, &b.0).map(Matrix).map_err(num("*"))
     });
     engine.register_fn("-", |a: Matrix| Matrix(-a.0));

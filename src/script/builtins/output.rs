@@ -86,13 +86,18 @@ pub fn register(engine: &mut Engine, st: &Arc<SessionState>) {
             if name.trim().is_empty() {
                 return Err(fail("record: the name must not be empty"));
             }
+            let value = json::encode_checked(&v, "record").map_err(fail)?;
             if let Some(s) = state::of(&ctx) {
-                s.record(&name, json::encode(&v));
+                s.record(&name, value);
             }
             Ok(())
         },
     );
-    engine.register_fn("to_json", |v: Dynamic| json::encode(&v).to_string());
+    engine.register_fn("to_json", |v: Dynamic| -> Rr<String> {
+        Ok(json::encode_checked(&v, "to_json")
+            .map_err(fail)?
+            .to_string())
+    });
     engine.register_fn("require", |c: Dynamic, m: Dynamic| -> Rr<()> {
         let Some(ok) = c.clone().try_cast::<bool>() else {
             return Err(fail(format!(

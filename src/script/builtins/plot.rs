@@ -1,7 +1,7 @@
 //! Figures: `plot`, `fig.add`, `fig.save`. The drawing itself is `crate::plot`.
 
 use crate::plot::{Figure as PlotFigure, MarkerShape, PlotOptions, Series};
-use crate::script::convert::{fail, to_f64_vec, to_str, type_name, Rr};
+use crate::script::convert::{fail, to_finite_vec, to_str, type_name, Rr};
 use crate::script::docs::Doc;
 use crate::script::state;
 use crate::script::types::Figure;
@@ -50,7 +50,13 @@ fn opt_size(m: &Map, key: &str, fname: &str) -> Rr<Option<u32>> {
         None => Ok(None),
         Some(v) => {
             let x = crate::script::convert::to_count(v, fname, &format!("option {key}"))?;
-            Ok(Some(x.min(u32::MAX as usize) as u32))
+            let (lo, hi) = crate::plot::SIZE_LIMITS;
+            if !(lo as usize..=hi as usize).contains(&x) {
+                return Err(fail(format!(
+                    "{fname}: option {key} must be {lo} to {hi} pixels, found {x}"
+                )));
+            }
+            Ok(Some(x as u32))
         }
     }
 }
@@ -92,11 +98,11 @@ fn series_list(y: &Dynamic, fname: &str) -> Rr<Vec<Vec<f64>>> {
             return a
                 .iter()
                 .enumerate()
-                .map(|(k, s)| to_f64_vec(s, fname, &format!("y[{k}]")))
+                .map(|(k, s)| to_finite_vec(s, fname, &format!("y[{k}]")))
                 .collect();
         }
     }
-    Ok(vec![to_f64_vec(y, fname, "y")?])
+    Ok(vec![to_finite_vec(y, fname, "y")?])
 }
 
 fn labels(m: Option<&Map>, fname: &str) -> Rr<Vec<String>> {
@@ -114,7 +120,7 @@ fn labels(m: Option<&Map>, fname: &str) -> Rr<Vec<String>> {
 
 fn make_plot(x: &Dynamic, y: &Dynamic, opts: Option<&Map>) -> Rr<Figure> {
     let f = "plot";
-    let x = to_f64_vec(x, f, "x")?;
+    let x = to_finite_vec(x, f, "x")?;
     let ys = series_list(y, f)?;
     for (k, s) in ys.iter().enumerate() {
         if s.len() != x.len() {
@@ -152,8 +158,8 @@ fn make_plot(x: &Dynamic, y: &Dynamic, opts: Option<&Map>) -> Rr<Figure> {
 
 fn add_series(fig: &mut Figure, x: &Dynamic, y: &Dynamic, opts: Option<&Map>) -> Rr<()> {
     let f = "add";
-    let x = to_f64_vec(x, f, "x")?;
-    let y = to_f64_vec(y, f, "y")?;
+    let x = to_finite_vec(x, f, "x")?;
+    let y = to_finite_vec(y, f, "y")?;
     if x.len() != y.len() {
         return Err(fail(format!(
             "add: y has {} values but x has {}",
