@@ -12,25 +12,10 @@ use nalgebra::DMatrix;
 use statebook::numeric::design::riccati::solve_riccati;
 use statebook::numeric::freq::response::{dense_point, point_of, FrequencyEvaluator};
 use statebook::numeric::lti::system::StateSpace;
-use std::time::{Duration, Instant};
 
-fn median(mut v: Vec<Duration>) -> Duration {
-    v.sort();
-    v[v.len() / 2]
-}
-
-fn time<F: FnMut()>(runs: usize, mut f: F) -> Duration {
-    f(); // warm-up
-    median(
-        (0..runs)
-            .map(|_| {
-                let t = Instant::now();
-                f();
-                t.elapsed()
-            })
-            .collect(),
-    )
-}
+mod common;
+#[allow(unused_imports)]
+use common::{median, time};
 
 fn random(r: usize, c: usize, seed: u64) -> DMatrix<f64> {
     let mut s = seed;

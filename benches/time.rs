@@ -15,25 +15,10 @@ use statebook::numeric::lti::system::StateSpace;
 use statebook::numeric::time::ode::{integrate_ode, OdeMethod, OdeOptions};
 use statebook::numeric::time::simulate::{simulate, Hold, SimulationOptions};
 use std::hint::black_box;
-use std::time::{Duration, Instant};
 
-fn median(mut v: Vec<Duration>) -> Duration {
-    v.sort();
-    v[v.len() / 2]
-}
-
-fn time<F: FnMut()>(runs: usize, mut f: F) -> Duration {
-    f(); // warm-up
-    median(
-        (0..runs)
-            .map(|_| {
-                let t = Instant::now();
-                f();
-                t.elapsed()
-            })
-            .collect(),
-    )
-}
+mod common;
+#[allow(unused_imports)]
+use common::{median, time};
 
 fn lcg(seed: &mut u64) -> f64 {
     *seed = seed
