@@ -6,6 +6,11 @@
 //! links, so neither a relative escape, an absolute path nor a symlink can leave the tree.
 //! Scripts cannot run programs, open sockets or read environment variables: the engine
 //! offers no such functions and `eval` is disabled (see `script::engine`).
+//!
+//! Known gaps, kept small on purpose: the engine's own size check walks a whole array or
+//! map after each change to it, so growing one element at a time is quadratic (100 000
+//! `push`es take a few seconds); and a native built-in's own work (a large eigenvalue
+//! problem in a loop) is not counted as operations. `--timeout` bounds both.
 
 use std::path::{Component, Path, PathBuf};
 
