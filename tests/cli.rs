@@ -1,22 +1,13 @@
 //! Command-line integration tests: the binary as a user runs it.
 
 use std::io::Write;
-use std::path::PathBuf;
-use std::process::{Command, Output, Stdio};
+use std::process::{Output, Stdio};
 
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_statebook"))
-}
+mod common;
+use common::cli::{bin, text};
 
-fn temp_dir(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("statebook-cli-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).expect("temp dir");
-    d
-}
-
-fn text(b: &[u8]) -> String {
-    String::from_utf8_lossy(b).into_owned()
+fn temp_dir(name: &str) -> std::path::PathBuf {
+    common::cli::temp_dir("cli", name)
 }
 
 fn run_file(dir: &std::path::Path, name: &str, body: &str, args: &[&str]) -> Output {

@@ -3,22 +3,13 @@
 use statebook::notebook::output::Output;
 use statebook::notebook::{files, run};
 use statebook::{Session, SessionOptions};
-use std::path::{Path, PathBuf};
-use std::process::Command;
+use std::path::Path;
 
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_statebook"))
-}
+mod common;
+use common::cli::{bin, text};
 
-fn temp_dir(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("statebook-nb-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).expect("temp dir");
-    d
-}
-
-fn text(b: &[u8]) -> String {
-    String::from_utf8_lossy(b).into_owned()
+fn temp_dir(name: &str) -> std::path::PathBuf {
+    common::cli::temp_dir("nb", name)
 }
 
 const ANALYSIS: &str = "//== Damped spring (invented numbers)

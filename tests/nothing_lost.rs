@@ -3,21 +3,13 @@
 
 use std::io::Write;
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output, Stdio};
+use std::process::{Output, Stdio};
 
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_statebook"))
-}
+mod common;
+use common::cli::{bin, text};
 
-fn temp_dir(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("statebook-lost-{name}-{}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).expect("temp dir");
-    d
-}
-
-fn text(b: &[u8]) -> String {
-    String::from_utf8_lossy(b).into_owned()
+fn temp_dir(name: &str) -> std::path::PathBuf {
+    common::cli::temp_dir("lost", name)
 }
 
 fn repl(dir: &Path, input: &str) -> Output {
