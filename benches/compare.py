@@ -201,9 +201,6 @@ def main():
     tmp = tempfile.mkdtemp(prefix="statebook-compare-")
     inputs = os.path.join(tmp, "inputs.json")
     sb = cargo_bench("kernels", ["--inputs", inputs], quick)
-    sb_time = None
-    if os.path.exists(os.path.join(ROOT, "benches", "time.rs")):
-        sb_time = cargo_bench("time", [], quick)
 
     env = dict(os.environ)
     removed = [v for v in BLAS_VARS if v in env]
@@ -251,7 +248,7 @@ def main():
     st_py = run_startup([sys.executable, "-c", "import numpy, scipy.linalg, scipy.signal"], quick)[0]
 
     def sbget(name, n=None, **kw):
-        for r in sb["results"] + (sb_time["results"] if sb_time else []):
+        for r in sb["results"]:
             if r.get("name") == name and (n is None or r.get("n") == n) and all(r.get(k) == v for k, v in kw.items()):
                 return r
         return None
@@ -291,13 +288,14 @@ def main():
         d = sbget("freq_dense", n)
         add(f"freq 1000 pts n={n} (Hessenberg vs own dense)", s and s["median_s"], d and d["median_s"], "statebook dense LU per point", 1 / 3 if n == 200 else None)
     for steps in (100_000, 1_000_000):
-        sim = sbget("simulate", 10, steps=steps)
         loop = sbget("sim_reference_loop", 10, steps=steps)
-        for refname in ("lsim", "dlsim"):
+        for sbname, refname, what in (("simulate", "lsim", "continuous, linear hold"),
+                                      ("simulate_discrete", "dlsim", "discrete")):
+            sim = sbget(sbname, 10, steps=steps)
             r = refget(refname, 10, steps=steps)
-            add(f"simulate 10 states {steps:.0e} samples", sim and sim.get("median_s"), r["median_s"], f"scipy.signal.{refname}" + thr(r), 1 / 50)
-        add(f"simulate 10 states {steps:.0e} samples", sim and sim.get("median_s"), loop and loop["median_s"], "reference loop (multiply-add limit)", 3.0)
-        add(f"reference loop {steps:.0e} samples", loop and loop["median_s"], refget("dlsim", 10, steps=steps)["median_s"], "scipy.signal.dlsim", None)
+            job = f"simulate 10 states {steps:.0e} samples ({what})"
+            add(job, sim and sim.get("median_s"), r["median_s"], f"scipy.signal.{refname}" + thr(r), 1 / 50)
+            add(job, sim and sim.get("median_s"), loop and loop["median_s"], "reference loop (multiply-add limit)", 3.0)
     demo = sbget("demo_drive_shaft")
     add("demo drive-shaft-reduction end to end", demo and demo["median_s"], None, "—", None)
 
@@ -329,8 +327,6 @@ def main():
         )
     text = "\n".join(head) + "\n\n" + "\n".join(lines) + "\n"
     print(text)
-    if sb_time is None:
-        print("simulate: not available (no benches/time.rs on this branch)")
     if md_path:
         with open(md_path, "w") as fh:
             fh.write("# Benchmark results\n\n")

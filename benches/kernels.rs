@@ -32,6 +32,7 @@ use statebook::numeric::design::riccati::solve_riccati;
 use statebook::numeric::freq::response::{dense_point, FrequencyEvaluator};
 use statebook::numeric::linalg::{eigen, expm::expm, sylvester::solve_lyapunov};
 use statebook::numeric::lti::system::StateSpace;
+use statebook::numeric::time::simulate::{simulate, SimulationOptions};
 use std::hint::black_box;
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
@@ -301,8 +302,7 @@ fn main() {
             );
         }
     }
-    // Simulation: statebook's `simulate` is not on this branch; a reference loop measures
-    // the multiply-add limit for the same model.
+    // Simulation, and a reference loop measuring the multiply-add limit for the same model.
     simulation(&mut b);
 
     // Start-up and the demo, through the release binary.
@@ -379,10 +379,35 @@ fn simulation(b: &mut Bench) {
     if !b.wanted("sim") && !b.wanted("mac") {
         return;
     }
-    b.unavailable(
-        "simulate",
-        "numeric::time::simulate is not on this branch (measured by --bench time once merged)",
-    );
+    // statebook's own simulation, outputs only (the default for long runs): the
+    // continuous model with its default linear hold (scipy's lsim interpolates linearly
+    // too) and the discrete model stepped once per sample (against dlsim).
+    let sys = StateSpace::new(a.clone(), bm.clone(), cm.clone(), DMatrix::zeros(1, 1), 0.0)
+        .expect("valid model");
+    let sysd = StateSpace::new(ad.clone(), bd.clone(), cm.clone(), DMatrix::zeros(1, 1), dt)
+        .expect("valid");
+    for &steps in &[100_000usize, 1_000_000] {
+        let t: Vec<f64> = (0..steps).map(|k| k as f64 * dt).collect();
+        let u = DMatrix::from_fn(steps, 1, |k, _| (0.01 * k as f64).sin());
+        let options = SimulationOptions {
+            hold: None,
+            keep_states: false,
+        };
+        for (name, model) in [("simulate", &sys), ("simulate_discrete", &sysd)] {
+            let mut resident = 0usize;
+            let tm = measure(b.opts.quick, || {
+                let r = simulate(model, &t, &u, None, options).expect("simulation");
+                resident = r.y.len() + r.x.as_ref().map_or(0, |x| x.len());
+                black_box(r.y[(steps - 1, 0)]);
+            });
+            b.record(
+                name,
+                n,
+                tm,
+                json!({"steps": steps, "stored_values": resident}),
+            );
+        }
+    }
     // Row-major copies for the reference loop.
     let adr: Vec<[f64; 10]> = (0..n)
         .map(|i| std::array::from_fn(|j| ad[(i, j)]))

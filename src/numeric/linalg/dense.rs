@@ -8,6 +8,7 @@
 
 use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
+use crate::numeric::linalg::kernels;
 use nalgebra::{Complex, DMatrix, DVector};
 
 /// Largest number of points [`linear_grid`] and [`log_grid`] will allocate.
@@ -34,8 +35,15 @@ pub(crate) fn scale_exponent(a: &DMatrix<f64>) -> i32 {
 
 /// x·2^e without intermediate overflow or underflow of the factor (two steps).
 pub(crate) fn times_pow2(x: f64, e: i32) -> f64 {
+    let (f1, f2) = pow2_factors(e);
+    x * f1 * f2
+}
+
+/// The two factors (2^⌊e/2⌋, 2^(e−⌊e/2⌋)) of [`times_pow2`], for scaling many entries
+/// by the same power of two: `x * f1 * f2` gives the same result.
+pub(crate) fn pow2_factors(e: i32) -> (f64, f64) {
     let half = e / 2;
-    x * 2f64.powi(half) * 2f64.powi(e - half)
+    (2f64.powi(half), 2f64.powi(e - half))
 }
 
 /// A diagonal block of a quasi-triangular matrix: first index and size (1 or 2).
@@ -171,17 +179,29 @@ pub(crate) fn balance_reducing_norm(a: &DMatrix<f64>) -> Option<(DMatrix<f64>, D
     if a.nrows() < 2 || a.nrows() != a.ncols() {
         return None;
     }
-    let e = scale_exponent(a);
-    let mut b = a.map(|v| times_pow2(v, -e));
-    let d = nalgebra::linalg::balancing::balance_parlett_reinsch(&mut b);
-    b.apply(|v| *v = times_pow2(*v, e));
-    let one_norm = |m: &DMatrix<f64>| {
-        m.column_iter()
-            .map(|c| c.iter().map(|v| v.abs()).sum::<f64>())
-            .fold(0.0f64, f64::max)
+    // Squares of entries within 2^±400 neither overflow nor underflow: no scaling needed.
+    let amax = kernels::max_abs(a.as_slice());
+    let e = if (2f64.powi(-400)..=2f64.powi(400)).contains(&amax) {
+        0
+    } else {
+        scale_exponent(a)
     };
-    if b.iter().all(|v| v.is_finite()) && one_norm(&b) < one_norm(a) {
-        Some((b, d))
+    let mut b = if e == 0 {
+        a.clone()
+    } else {
+        let (down1, down2) = pow2_factors(-e);
+        a.map(|v| v * down1 * down2)
+    };
+    let d = kernels::balance_in_place(&mut b);
+    if d.iter().all(|v| *v == 1.0) {
+        return None; // nothing to balance
+    }
+    if e != 0 {
+        let (up1, up2) = pow2_factors(e);
+        b.apply(|v| *v = *v * up1 * up2);
+    }
+    if kernels::all_finite(b.as_slice()) && kernels::one_norm(&b) < kernels::one_norm(a) {
+        Some((b, DVector::from_vec(d)))
     } else {
         None
     }

@@ -2,7 +2,10 @@
 
 use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
-use crate::numeric::linalg::dense::{balance_reducing_norm, scale_exponent, times_pow2, unbalance};
+use crate::numeric::linalg::dense::{
+    balance_reducing_norm, pow2_factors, scale_exponent, unbalance,
+};
+use crate::numeric::linalg::kernels::{self, one_norm};
 use nalgebra::DMatrix;
 
 /// Options of [`expm_with`].
@@ -20,7 +23,9 @@ impl Default for ExpmParams {
 }
 
 /// θₘ of Higham 2005, Table 2.3: the largest ‖A‖₁ for which the backward error of the
-/// [m/m] Padé approximant is below the unit roundoff 2⁻⁵³ in IEEE double precision.
+/// [m/m] Padé approximant is below the unit roundoff 2⁻⁵³ in IEEE double precision. The
+/// same bounds apply to the ‖Aᵖ‖₁^(1/p) estimates of Al-Mohy & Higham 2009 (their
+/// Table 3.1), except that their Algorithm 5.1 scales for m = 13 to [`THETA_13_2009`].
 const THETA: [(usize, f64); 5] = [
     (3, 1.495585217958292e-2),
     (5, 2.53939833006323e-1),
@@ -28,6 +33,14 @@ const THETA: [(usize, f64); 5] = [
     (9, 2.097847961257068e0),
     (13, 5.371920351148152e0),
 ];
+
+/// The m = 13 scaling target of Al-Mohy & Higham 2009, Algorithm 5.1 (smaller than
+/// θ₁₃ because the ℓ correction then only ever adds squarings).
+const THETA_13_2009: f64 = 4.25;
+
+/// Above ‖A‖₁ = 2^this the powers A², A⁴, A⁶ used by the 2009 estimates could overflow;
+/// such matrices take the 2005 rule, which scales before forming any power.
+const POWER_ESTIMATE_LIMIT_LOG2: f64 = 60.0;
 
 /// Coefficients b₀ … bₘ of the [m/m] Padé numerator pₘ(x) = Σ bₖ xᵏ for eˣ, scaled to be
 /// integers: bₖ ∝ (2m−k)! m! / ((2m)! k! (m−k)!) (Higham 2005, § 2; checked against that
@@ -73,27 +86,88 @@ const MAX_SQUARINGS: i32 = 1100;
 /// ‖A‖₁ = maxⱼ Σᵢ |aᵢⱼ|, as (mantissa-scaled value, exponent) so that it cannot overflow:
 /// the norm is `value · 2^exponent`.
 fn one_norm_scaled(a: &DMatrix<f64>) -> (f64, i32) {
+    // Entries within 2^±500: a sum of n of them cannot overflow.
+    let amax = kernels::max_abs(a.as_slice());
+    if amax <= 2f64.powi(500) {
+        return (one_norm(a), 0);
+    }
     let e = scale_exponent(a);
+    let (f1, f2) = pow2_factors(-e);
     let norm = a
         .column_iter()
-        .map(|c| c.iter().map(|v| times_pow2(*v, -e).abs()).sum::<f64>())
+        .map(|c| c.iter().map(|v| (v * f1 * f2).abs()).sum::<f64>())
         .fold(0.0f64, f64::max);
     (norm, e)
 }
 
-/// Padé [m/m] approximant rₘ(A) = qₘ(A)⁻¹ pₘ(A) with U the odd and V the even part of pₘ.
-fn pade(a: &DMatrix<f64>, m: usize) -> NumResult<DMatrix<f64>> {
-    let n = a.nrows();
-    let id = DMatrix::<f64>::identity(n, n);
-    let a2 = a * a;
+/// Even powers of the argument of a Padé approximant, formed once and shared by the
+/// degree selection and the evaluation.
+struct Powers {
+    a2: DMatrix<f64>,
+    a4: Option<DMatrix<f64>>,
+    a6: Option<DMatrix<f64>>,
+    a8: Option<DMatrix<f64>>,
+}
+
+impl Powers {
+    fn new(a: &DMatrix<f64>) -> Self {
+        Powers {
+            a2: a * a,
+            a4: None,
+            a6: None,
+            a8: None,
+        }
+    }
+    fn a4(&mut self) -> &DMatrix<f64> {
+        let a2 = &self.a2;
+        self.a4.get_or_insert_with(|| a2 * a2)
+    }
+    fn a6(&mut self) -> &DMatrix<f64> {
+        self.a4();
+        let (a2, a4) = (&self.a2, self.a4.as_ref().expect("formed above"));
+        self.a6.get_or_insert_with(|| a4 * a2)
+    }
+    fn a8(&mut self) -> &DMatrix<f64> {
+        self.a4();
+        let a4 = self.a4.as_ref().expect("formed above");
+        self.a8.get_or_insert_with(|| a4 * a4)
+    }
+}
+
+/// Σₖ cₖ Mₖ + c_I·I in one pass per term, without temporaries.
+fn combine(terms: &[(&DMatrix<f64>, f64)], c_identity: f64) -> DMatrix<f64> {
+    let n = terms[0].0.nrows();
+    let mut out = DMatrix::<f64>::zeros(n, n);
+    for (m, c) in terms {
+        for (o, v) in out.as_mut_slice().iter_mut().zip(m.as_slice()) {
+            *o += c * v;
+        }
+    }
+    for i in 0..n {
+        out[(i, i)] += c_identity;
+    }
+    out
+}
+
+/// Padé [m/m] approximant rₘ(A) = qₘ(A)⁻¹ pₘ(A) with U the odd and V the even part of pₘ,
+/// from the even powers in `p` (formed as needed). pₘ(A) and qₘ(A) are polynomials in
+/// the same matrix and commute, so rₘ(A) = pₘ(A) qₘ(A)⁻¹ too; it is formed that way, by
+/// right division, whose column-oriented loops suit column-major storage.
+fn pade(a: &DMatrix<f64>, p: &mut Powers, m: usize) -> NumResult<DMatrix<f64>> {
     let (u, v) = if m == 13 {
         let b = &B13;
-        let a4 = &a2 * &a2;
-        let a6 = &a4 * &a2;
-        let inner_u = &a6 * (&a6 * b[13] + &a4 * b[11] + &a2 * b[9]);
-        let u = a * (inner_u + &a6 * b[7] + &a4 * b[5] + &a2 * b[3] + &id * b[1]);
-        let inner_v = &a6 * (&a6 * b[12] + &a4 * b[10] + &a2 * b[8]);
-        let v = inner_v + &a6 * b[6] + &a4 * b[4] + &a2 * b[2] + &id * b[0];
+        let (a2, a4, a6) = {
+            p.a6();
+            (
+                &p.a2,
+                p.a4.as_ref().expect("formed"),
+                p.a6.as_ref().expect("formed"),
+            )
+        };
+        let inner_u = a6 * combine(&[(a6, b[13]), (a4, b[11]), (a2, b[9])], 0.0);
+        let u = a * combine(&[(&inner_u, 1.0), (a6, b[7]), (a4, b[5]), (a2, b[3])], b[1]);
+        let inner_v = a6 * combine(&[(a6, b[12]), (a4, b[10]), (a2, b[8])], 0.0);
+        let v = combine(&[(&inner_v, 1.0), (a6, b[6]), (a4, b[4]), (a2, b[2])], b[0]);
         (u, v)
     } else {
         let b: &[f64] = match m {
@@ -102,71 +176,220 @@ fn pade(a: &DMatrix<f64>, m: usize) -> NumResult<DMatrix<f64>> {
             7 => &B7,
             _ => &B9,
         };
-        // Even powers I, A², A⁴, … up to A^(m−1).
-        let mut powers = vec![id.clone(), a2.clone()];
-        while powers.len() < m.div_ceil(2) {
-            let next = &powers[powers.len() - 1] * &a2;
-            powers.push(next);
+        // Even powers A², A⁴, … up to A^(m−1).
+        if m >= 5 {
+            p.a4();
         }
-        let mut odd = DMatrix::<f64>::zeros(n, n);
-        let mut even = DMatrix::<f64>::zeros(n, n);
-        for (k, p) in powers.iter().enumerate() {
-            odd += p * b[2 * k + 1];
-            even += p * b[2 * k];
+        if m >= 7 {
+            p.a6();
         }
-        (a * odd, even)
+        if m >= 9 {
+            p.a8();
+        }
+        let powers: Vec<&DMatrix<f64>> = [Some(&p.a2), p.a4.as_ref(), p.a6.as_ref(), p.a8.as_ref()]
+            .into_iter()
+            .take(m / 2)
+            .map(|x| x.expect("formed above"))
+            .collect();
+        let odd: Vec<(&DMatrix<f64>, f64)> = powers
+            .iter()
+            .enumerate()
+            .map(|(k, m)| (*m, b[2 * k + 3]))
+            .collect();
+        let even: Vec<(&DMatrix<f64>, f64)> = powers
+            .iter()
+            .enumerate()
+            .map(|(k, m)| (*m, b[2 * k + 2]))
+            .collect();
+        (a * combine(&odd, b[1]), combine(&even, b[0]))
     };
-    let denominator = &v - &u;
-    let numerator = &v + &u;
-    lu_solve_blocked(denominator, numerator).ok_or_else(|| {
+    let mut denominator = v.clone();
+    denominator -= &u;
+    let mut numerator = v;
+    numerator += &u;
+    kernels::right_divide(numerator, denominator).ok_or_else(|| {
         NumError::no_solution("matrix exponential", "the Padé denominator is singular")
     })
 }
 
-/// Solves `M X = B` for square `M` with many right-hand sides: LU factorisation with
-/// partial pivoting (nalgebra's), then forward and back substitution by blocks of rows,
-/// each block's effect on the remaining rows applied as one matrix product (the blocked
-/// form of LAPACK's `dtrsm`), so that most of the O(n³) work runs in the matrix-product
-/// kernel. `None` when `U` has an exactly zero pivot (as `LU::solve`).
-fn lu_solve_blocked(m: DMatrix<f64>, mut b: DMatrix<f64>) -> Option<DMatrix<f64>> {
-    const NB: usize = 32;
-    let n = m.nrows();
-    let lu = m.lu();
-    let (p, l, u) = lu.unpack();
-    if u.diagonal().iter().any(|d| *d == 0.0) {
-        return None;
-    }
-    p.permute_rows(&mut b);
-    // Forward: L Y = P B, L unit lower triangular.
-    let mut k0 = 0;
-    while k0 < n {
-        let k1 = (k0 + NB).min(n);
-        let lkk = l.view((k0, k0), (k1 - k0, k1 - k0));
-        let mut top = b.rows_mut(k0, k1 - k0);
-        lkk.solve_lower_triangular_with_diag_mut(&mut top, 1.0);
-        if k1 < n {
-            let (top, mut rest) = b.rows_range_pair_mut(k0..k1, k1..n);
-            rest.gemm(-1.0, &l.view((k1, k0), (n - k1, k1 - k0)), &top, 1.0);
+/// log₂ |c₂ₘ₊₁| with c₂ₘ₊₁ = (m!)² / ((2m)! (2m+1)!), the leading coefficient of the
+/// backward-error series of the [m/m] Padé approximant (Al-Mohy & Higham 2009, § 4).
+fn log2_leading_error_coefficient(m: usize) -> f64 {
+    let log2_factorial = |k: usize| (2..=k).map(|i| (i as f64).log2()).sum::<f64>();
+    2.0 * log2_factorial(m) - log2_factorial(2 * m) - log2_factorial(2 * m + 1)
+}
+
+/// log₂‖|A|ᵏ‖₁ for k = 1, 2, …, extended on demand.
+///
+/// Computed exactly, not estimated: for a non-negative matrix the 1-norm is the largest
+/// entry of eᵀ|A|ᵏ, so each further power costs one vector–matrix product (O(n²), a dot
+/// product per column); the vector is renormalised after each product so that nothing
+/// overflows.
+struct AbsPowerNorms {
+    abs: DMatrix<f64>,
+    v: nalgebra::DVector<f64>,
+    log2: Vec<f64>,
+    zero: bool,
+}
+
+impl AbsPowerNorms {
+    fn new(a: &DMatrix<f64>) -> Self {
+        let n = a.nrows();
+        AbsPowerNorms {
+            abs: a.abs(),
+            v: nalgebra::DVector::from_element(n, 1.0),
+            log2: Vec::new(),
+            zero: false,
         }
-        k0 = k1;
     }
-    // Backward: U X = Y.
-    let mut k1 = n;
-    while k1 > 0 {
-        let k0 = k1.saturating_sub(NB);
-        let ukk = u.view((k0, k0), (k1 - k0, k1 - k0));
-        let mut blk = b.rows_mut(k0, k1 - k0);
-        if !ukk.solve_upper_triangular_mut(&mut blk) {
-            return None;
+
+    /// log₂‖|A|ᵏ‖₁ (−∞ once a power vanishes).
+    fn log2_norm(&mut self, k: usize) -> f64 {
+        while self.log2.len() < k && !self.zero {
+            // wⱼ = Σᵢ vᵢ|aᵢⱼ|: one dot product with each column of |A|.
+            let n = self.v.len();
+            let v = self.v.as_slice();
+            let w = nalgebra::DVector::from_iterator(
+                n,
+                self.abs
+                    .as_slice()
+                    .chunks_exact(n)
+                    .map(|c| kernels::dot(c, v)),
+            );
+            let top = kernels::max_abs(w.as_slice());
+            if top == 0.0 {
+                self.zero = true;
+                break;
+            }
+            let last = self.log2.last().copied().unwrap_or(0.0);
+            self.log2.push(last + top.log2());
+            self.v = w / top;
         }
-        if k0 > 0 {
-            let (above, blk) = b.rows_range_pair_mut(0..k0, k0..k1);
-            let mut above = above;
-            above.gemm(-1.0, &u.view((0, k0), (k0, k1 - k0)), &blk, 1.0);
+        if self.zero && self.log2.len() < k {
+            f64::NEG_INFINITY
+        } else {
+            self.log2[k - 1]
         }
-        k1 = k0;
     }
-    Some(b)
+
+    /// ℓ(2⁻ˢA, m) of Al-Mohy & Higham 2009, eq. (5.1): the number of extra squarings that
+    /// keeps the leading backward-error term |c₂ₘ₊₁|·‖|B|^(2m+1)‖₁/‖B‖₁ (B = 2⁻ˢA) below
+    /// u = 2⁻⁵³. It guards against the norm estimates undershooting for strongly
+    /// non-normal A. `log2_a_norm` is log₂‖A‖₁; scaling by 2⁻ˢ enters exactly.
+    fn ell(&mut self, m: usize, s: i32, log2_a_norm: f64) -> i32 {
+        let p = 2 * m + 1;
+        let log2_power = self.log2_norm(p) - (p as f64) * s as f64;
+        let log2_alpha = log2_leading_error_coefficient(m) + log2_power - (log2_a_norm - s as f64);
+        let extra = ((log2_alpha + 53.0) / (2 * m) as f64).ceil();
+        if extra.is_finite() {
+            extra.max(0.0) as i32
+        } else {
+            0
+        }
+    }
+}
+
+/// Degree and scaling from the ‖Aᵖ‖₁^(1/p) of Al-Mohy & Higham 2009, Algorithm 5.1:
+/// returns rₘ(2⁻ˢA) and s. The powers A², A⁴, A⁶ are formed anyway for the approximant,
+/// so their norms are exact here; ‖A⁸‖₁ ≤ ‖A⁴‖₁² and ‖A¹⁰‖₁ ≤ ‖A⁴‖₁‖A⁶‖₁ (and
+/// ‖A⁶‖₁ ≤ ‖A⁴‖₁‖A²‖₁ before A⁶ exists) stand in for the paper's estimates of the rest.
+/// Each is an upper bound of the exact value, so the choice is never less cautious than
+/// with exact norms.
+fn pade_by_power_estimates(a: &DMatrix<f64>) -> NumResult<(DMatrix<f64>, i32)> {
+    let mut p = Powers::new(a);
+    let mut abs_powers = AbsPowerNorms::new(a);
+    let log2_a = one_norm(a).log2();
+    let mut ell = |m: usize, s: i32| abs_powers.ell(m, s, log2_a);
+    let n2 = one_norm(&p.a2);
+    // m = 3: d₄ ≤ ‖A²‖^(1/2) and d₆ ≤ ‖A²‖^(1/2).
+    if n2.sqrt() <= THETA[0].1 && ell(3, 0) == 0 {
+        return Ok((pade(a, &mut p, 3)?, 0));
+    }
+    let n4 = one_norm(p.a4());
+    let d4 = n4.powf(0.25);
+    let eta1 = d4.max((n4 * n2).powf(1.0 / 6.0));
+    if eta1 <= THETA[1].1 && ell(5, 0) == 0 {
+        return Ok((pade(a, &mut p, 5)?, 0));
+    }
+    let n6 = one_norm(p.a6());
+    let d6 = n6.powf(1.0 / 6.0);
+    let d8 = d4; // ‖A⁸‖₁^(1/8) ≤ (‖A⁴‖₁²)^(1/8)
+    let eta3 = d6.max(d8);
+    for &(m, theta) in &THETA[2..4] {
+        if eta3 <= theta && ell(m, 0) == 0 {
+            return Ok((pade(a, &mut p, m)?, 0));
+        }
+    }
+    let d10 = (n4 * n6).powf(0.1);
+    let eta5 = eta3.min(d8.max(d10));
+    let mut s = if eta5 > 0.0 {
+        (eta5 / THETA_13_2009).log2().ceil().max(0.0) as i32
+    } else {
+        0
+    };
+    // Aᵏ·2^(−ks), exact (power-of-two factors).
+    let scaled = |m: &DMatrix<f64>, k: i32, s: i32| {
+        let (f1, f2) = pow2_factors(-k * s);
+        m.map(|v| v * f1 * f2)
+    };
+    s += ell(13, s);
+    if s == 0 {
+        return Ok((pade(a, &mut p, 13)?, 0));
+    }
+    let a_s = scaled(a, 1, s);
+    let mut ps = Powers {
+        a2: scaled(&p.a2, 2, s),
+        a4: p.a4.as_ref().map(|m| scaled(m, 4, s)),
+        a6: p.a6.as_ref().map(|m| scaled(m, 6, s)),
+        a8: None,
+    };
+    Ok((pade(&a_s, &mut ps, 13)?, s))
+}
+
+/// Degree and scaling from ‖A‖₁ alone (Higham 2005, Algorithm 2.3), for matrices whose
+/// powers could overflow: returns rₘ(2⁻ˢA) and s.
+fn pade_by_norm(
+    a: &DMatrix<f64>,
+    norm_log2: f64,
+    overflow: impl Fn() -> NumError,
+) -> NumResult<(DMatrix<f64>, i32)> {
+    for &(m, theta) in &THETA[..4] {
+        if norm_log2 <= theta.log2() {
+            return Ok((pade(a, &mut Powers::new(a), m)?, 0));
+        }
+    }
+    let s = (norm_log2 - THETA[4].1.log2()).ceil().max(0.0);
+    if s > MAX_SQUARINGS as f64 {
+        return Err(overflow());
+    }
+    let s = s as i32;
+    let (f1, f2) = pow2_factors(-s);
+    let scaled = a.map(|v| v * f1 * f2);
+    Ok((pade(&scaled, &mut Powers::new(&scaled), 13)?, s))
+}
+
+fn is_upper_triangular(a: &DMatrix<f64>) -> bool {
+    (0..a.ncols()).all(|j| a.column(j).iter().skip(j + 1).all(|v| *v == 0.0))
+}
+
+/// Sets the diagonal and first superdiagonal of `x` to those of e^(2⁻ᵏT) for upper
+/// triangular T: eᵗⁱⁱ on the diagonal, and for each 2×2 block [[λ₁, t], [0, λ₂]]
+/// the (1, 2) entry t·(e^λ₂ − e^λ₁)/(λ₂ − λ₁) = t·e^((λ₁+λ₂)/2)·sinh(z)/z with
+/// z = (λ₂ − λ₁)/2, free of cancellation (Higham 2008, "Functions of Matrices", eq. 10.42).
+fn exact_triangular_band(x: &mut DMatrix<f64>, t: &DMatrix<f64>, k: i32) {
+    let n = t.nrows();
+    let (f1, f2) = pow2_factors(-k);
+    let sc = |v: f64| v * f1 * f2;
+    for i in 0..n {
+        x[(i, i)] = sc(t[(i, i)]).exp();
+    }
+    for i in 0..n.saturating_sub(1) {
+        let (l1, l2, t12) = (sc(t[(i, i)]), sc(t[(i + 1, i + 1)]), sc(t[(i, i + 1)]));
+        let z = 0.5 * (l2 - l1);
+        // sinh(z)/z = 1 + z²/6 + …: below 1e-8 the correction is under 2⁻⁵³.
+        let sinhc = if z.abs() < 1e-8 { 1.0 } else { z.sinh() / z };
+        x[(i, i + 1)] = t12 * (0.5 * (l1 + l2)).exp() * sinhc;
+    }
 }
 
 /// Matrix exponential e^A = Σ Aᵏ/k! of a square matrix, with default [`ExpmParams`].
@@ -215,41 +438,35 @@ pub fn expm_with(a: &DMatrix<f64>, params: &ExpmParams) -> NumResult<DMatrix<f64
     }
 
     let (norm_m, norm_e) = one_norm_scaled(&work);
-    let norm_log2 = if norm_m > 0.0 {
-        norm_m.log2() + norm_e as f64
+    if norm_m == 0.0 {
+        return Ok(DMatrix::identity(n, n)); // e^0 = I exactly
+    }
+    let norm_log2 = norm_m.log2() + norm_e as f64;
+    let (mut x, squarings) = if norm_log2 <= POWER_ESTIMATE_LIMIT_LOG2 {
+        pade_by_power_estimates(&work)?
     } else {
-        f64::NEG_INFINITY
+        pade_by_norm(&work, norm_log2, overflow)?
     };
-    let mut result = None;
-    for &(m, theta) in &THETA[..4] {
-        if norm_log2 <= theta.log2() {
-            result = Some(pade(&work, m)?);
-            break;
+    // Upper-triangular A: the diagonal and first superdiagonal of every intermediate
+    // power are known exactly, and replacing them stops the squarings from amplifying
+    // their rounding (Al-Mohy & Higham 2009, § 2, Code Fragment 2.1).
+    let triangular = is_upper_triangular(&work);
+    if triangular {
+        exact_triangular_band(&mut x, &work, squarings);
+    }
+    for j in 1..=squarings {
+        x = &x * &x;
+        if !kernels::all_finite(x.as_slice()) {
+            return Err(overflow());
+        }
+        if triangular {
+            exact_triangular_band(&mut x, &work, squarings - j);
         }
     }
-    let mut x = match result {
-        Some(x) => x,
-        None => {
-            let s = (norm_log2 - THETA[4].1.log2()).ceil().max(0.0);
-            if s > MAX_SQUARINGS as f64 {
-                return Err(overflow());
-            }
-            let s = s as i32;
-            let scaled = work.map(|v| times_pow2(v, -s));
-            let mut x = pade(&scaled, 13)?;
-            for _ in 0..s {
-                x = &x * &x;
-                if !x.iter().all(|v| v.is_finite()) {
-                    return Err(overflow());
-                }
-            }
-            x
-        }
-    };
     if let Some(d) = balance_d {
         unbalance(&mut x, &d); // e^A = D e^B D⁻¹
     }
-    if !x.iter().all(|v| v.is_finite()) {
+    if !kernels::all_finite(x.as_slice()) {
         return Err(overflow());
     }
     Ok(x)
@@ -434,6 +651,79 @@ mod tests {
                 let ratio = (m - k) as f64 / (((2 * m - k) * (k + 1)) as f64);
                 assert_close!(b[k + 1] / b[k], ratio, 0.0, 4.0 * EPS);
             }
+        }
+    }
+
+    #[test]
+    fn leading_error_coefficients_match_the_factorial_formula() {
+        // 1/|c₂ₘ₊₁| = (2m)! (2m+1)! / (m!)², evaluated exactly in integers (Python).
+        let exact = [
+            (3, 100800.0),
+            (5, 10059033600.0),
+            (7, 4487938430976000.0),
+            (9, 5.914384781877412e21),
+            (13, 1.1325077560602111e35),
+        ];
+        for (m, recip) in exact {
+            let got = (-log2_leading_error_coefficient(m)).exp2();
+            assert_close!(got, recip, 0.0, 1e-13);
+        }
+    }
+
+    #[test]
+    fn power_estimates_choose_the_cheaper_degree() {
+        // A normal matrix with ‖A‖₁ far above its spectral radius: the 2005 rule scales,
+        // the ‖Aᵖ‖^(1/p) estimates see ρ(A) and need no squaring. A = Q diag(λ) Qᵀ with
+        // Q a Householder reflector I − 2vvᵀ (v = e/√n), so e^A = Q diag(e^λ) Qᵀ.
+        let n = 40;
+        let lambda: Vec<f64> = (0..n).map(|k| -1.0 + 2.0 * k as f64 / n as f64).collect();
+        let v = DMatrix::from_element(n, 1, 1.0 / (n as f64).sqrt());
+        let q = id(n) - &v * v.transpose() * 2.0;
+        let diag = |f: &dyn Fn(f64) -> f64| {
+            DMatrix::from_diagonal(&nalgebra::DVector::from_iterator(
+                n,
+                lambda.iter().map(|x| f(*x)),
+            ))
+        };
+        let a = &q * diag(&|x| x) * &q;
+        let expected = &q * diag(&|x| x.exp()) * &q;
+        let (x, s) = pade_by_power_estimates(&a).expect("finite");
+        assert_eq!(s, 0, "no squaring for spectral radius 1");
+        assert!(rel(&x, &expected) <= 1e-14, "{}", rel(&x, &expected));
+        let balanced = expm(&a).expect("finite");
+        assert!(
+            rel(&balanced, &expected) <= 1e-13,
+            "{}",
+            rel(&balanced, &expected)
+        );
+    }
+
+    #[test]
+    fn strongly_non_normal_matrix_is_not_overscaled() {
+        // exp([[a, b], [0, a]]) = e^a [[1, b], [0, 1]] (series of a Jordan block). The 2005
+        // rule takes s ≈ log₂ b squarings; the 2009 estimates need far fewer, and with the
+        // exact triangular band the result keeps full relative accuracy in every entry
+        // (Al-Mohy & Higham 2009, §§ 1–2).
+        for &b in &[1e3, 1e8, 1e16] {
+            let a = DMatrix::from_row_slice(2, 2, &[1.0, b, 0.0, 1.0]);
+            let e1 = 1f64.exp();
+            let expected = DMatrix::from_row_slice(2, 2, &[e1, e1 * b, 0.0, e1]);
+            let got = expm_with(&a, &ExpmParams { balance: false }).expect("finite");
+            let (_, s) = pade_by_power_estimates(&a).expect("finite");
+            assert_close!(got, expected, 0.0, 1e-14);
+            let s_2005 = ((b + 1.0) / THETA[4].1).log2().ceil() as i32;
+            assert!(s < s_2005, "b = {b}: s = {s}, the 2005 rule takes {s_2005}");
+        }
+    }
+
+    #[test]
+    fn huge_norms_take_the_norm_rule_and_agree() {
+        // Above 2^60 the norm rule runs; just below both rules must agree on e^(c·N) for
+        // a nilpotent N (exact series I + cN).
+        for &c in &[2f64.powi(59), 2f64.powi(62)] {
+            let a = DMatrix::from_row_slice(2, 2, &[0.0, c, 0.0, 0.0]);
+            let expected = DMatrix::from_row_slice(2, 2, &[1.0, c, 0.0, 1.0]);
+            assert_close!(expm(&a).expect("finite"), expected, 0.0, 1e-15);
         }
     }
 

@@ -4,6 +4,7 @@ pub mod dense;
 pub mod eigen;
 pub mod expm;
 pub mod hammarling;
+pub(crate) mod kernels;
 pub mod logm;
 pub mod ops;
 pub mod poly;
