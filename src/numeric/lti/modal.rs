@@ -243,7 +243,9 @@ pub fn modal_realization(sys: &StateSpace) -> NumResult<Modal> {
 /// perturbation can change it. Repeated complex pairs are refused.
 pub fn jordan_realization(sys: &StateSpace) -> NumResult<Modal> {
     let mut d = decouple(&sys.a)?;
-    scale_blocks(&mut d);
+    // Chains are read off the Schur blocks as they are: the standard-form scaling of a
+    // 2×2 block (scale_blocks, applied at the end) would shrink the coupling of a nearly
+    // defective pair to the size of its rounding-level imaginary part.
     let mut new_blocks = Vec::new();
     for &(s, k) in &d.blocks.clone() {
         let real_cluster = k > 2
@@ -288,6 +290,7 @@ pub fn jordan_realization(sys: &StateSpace) -> NumResult<Modal> {
         d.t.view_mut((s, s), (k, k)).copy_from(&j);
     }
     d.blocks = new_blocks;
+    scale_blocks(&mut d);
     let mut out = assemble(sys, d, "jordan_realization")?;
     out.warnings.insert(
         0,
@@ -464,6 +467,24 @@ mod tests {
             }
             same_markov(&sys, &m.system);
         }
+    }
+
+    #[test]
+    fn jordan_chain_survives_a_rounding_level_complex_split() {
+        // A Schur-form pair [[λ, b], [c, λ]] with b·c < 0 at rounding level: eigenvalues
+        // λ ± i·√(−bc) ≈ λ ± 1e-8 i, numerically one defective eigenvalue. The chain must
+        // be found from the block as it is, before any standard-form scaling shrinks b.
+        let mut rng = Rng::new(9);
+        let a = DMatrix::from_row_slice(2, 2, &[-1.0, -0.9, 1.2e-16, -1.0]);
+        let sys = model(a, &mut rng);
+        let jr = jordan_realization(&sys).unwrap();
+        let ja = &jr.system.a;
+        assert_eq!(jr.blocks, vec![2], "{ja}");
+        assert!(
+            (ja[(0, 0)] + 1.0).abs() < 1e-12 && (ja[(0, 1)] - 1.0).abs() < 1e-12,
+            "{ja}"
+        );
+        same_markov(&sys, &jr.system);
     }
 
     #[test]
