@@ -2,7 +2,8 @@
 """statebook vs numpy/scipy on the same jobs, side by side in one run.
 
     python3 benches/compare.py            # full run (a few minutes)
-    python3 benches/compare.py --quick    # fewer repeats
+    python3 benches/compare.py --quick    # fewer repeats, one round
+    python3 benches/compare.py --rounds 5 # five interleaved rounds (default 3)
     python3 benches/compare.py --markdown benches/RESULTS.md   # also write the table
 
 Inputs: the Rust harness (`cargo bench --bench kernels -- --json --inputs F`) generates
@@ -187,25 +188,9 @@ def fmt_t(s):
     return f"{s:.2f} s"
 
 
-def main():
-    quick = "--quick" in sys.argv
-    if len(sys.argv) >= 3 and sys.argv[1] == "--reference":
-        print(json.dumps(reference(sys.argv[2], "--quick" in sys.argv[3:], "--no-sim" not in sys.argv[3:])))
-        return
-    md_path = None
-    if "--markdown" in sys.argv:
-        md_path = sys.argv[sys.argv.index("--markdown") + 1]
-
-    exe = os.path.join(ROOT, "target", "release", "statebook")
-    subprocess.run(["cargo", "build", "--release", "--quiet"], cwd=ROOT, check=True)
-    tmp = tempfile.mkdtemp(prefix="statebook-compare-")
-    inputs = os.path.join(tmp, "inputs.json")
+def run_round(inputs, quick, env):
+    """One statebook kernel run and the reference runs right after it."""
     sb = cargo_bench("kernels", ["--inputs", inputs], quick)
-
-    env = dict(os.environ)
-    removed = [v for v in BLAS_VARS if v in env]
-    for v in BLAS_VARS:
-        env.pop(v, None)
     # Two reference runs: OpenBLAS single-threaded (statebook is single-threaded) and with
     # its default threads. Each job keeps the faster of the two (the stricter reference):
     # on a shared, loaded machine the threaded BLAS can be many times slower.
@@ -239,7 +224,34 @@ def main():
                 best[key] = x
     ref["results"] = list(best.values())
     ref["blas"] = " | ".join(sorted({r["blas"] for r in refs}))
+    return sb, ref
 
+
+def main():
+    quick = "--quick" in sys.argv
+    if len(sys.argv) >= 3 and sys.argv[1] == "--reference":
+        print(json.dumps(reference(sys.argv[2], "--quick" in sys.argv[3:], "--no-sim" not in sys.argv[3:])))
+        return
+    md_path = None
+    if "--markdown" in sys.argv:
+        md_path = sys.argv[sys.argv.index("--markdown") + 1]
+
+    exe = os.path.join(ROOT, "target", "release", "statebook")
+    subprocess.run(["cargo", "build", "--release", "--quiet"], cwd=ROOT, check=True)
+    tmp = tempfile.mkdtemp(prefix="statebook-compare-")
+    inputs = os.path.join(tmp, "inputs.json")
+    rounds = 1 if quick else 3
+    if "--rounds" in sys.argv:
+        rounds = max(1, int(sys.argv[sys.argv.index("--rounds") + 1]))
+    env = dict(os.environ)
+    removed = [v for v in BLAS_VARS if v in env]
+    for v in BLAS_VARS:
+        env.pop(v, None)
+    per_round = []
+    for k in range(rounds):
+        sys.stderr.write(f"round {k + 1} of {rounds}\n")
+        sb, ref = run_round(inputs, quick, env)
+        per_round.append((sb, ref))
     # Start-up, both through the same subprocess call.
     trivial = os.path.join(tmp, "trivial.sbook")
     with open(trivial, "w") as fh:
@@ -247,57 +259,78 @@ def main():
     st_sb = run_startup([exe, "run", trivial], quick, cwd=tmp)[0]
     st_py = run_startup([sys.executable, "-c", "import numpy, scipy.linalg, scipy.signal"], quick)[0]
 
-    def sbget(name, n=None, **kw):
-        for r in sb["results"]:
-            if r.get("name") == name and (n is None or r.get("n") == n) and all(r.get(k) == v for k, v in kw.items()):
-                return r
-        return None
+    def build_rows(sb, ref):
+        def sbget(name, n=None, **kw):
+            for r in sb["results"]:
+                if r.get("name") == name and (n is None or r.get("n") == n) and all(r.get(k) == v for k, v in kw.items()):
+                    return r
+            return None
 
-    def refget(name, n=None, **kw):
-        for r in ref["results"]:
-            if r["name"] == name and (n is None or r["n"] == n) and all(r.get(k) == v for k, v in kw.items()):
-                return r
-        return None
+        def refget(name, n=None, **kw):
+            for r in ref["results"]:
+                if r["name"] == name and (n is None or r["n"] == n) and all(r.get(k) == v for k, v in kw.items()):
+                    return r
+            return None
 
-    rows = []  # (job, statebook s, reference s, reference name, target ratio or None)
+        rows = []  # (job, statebook s, reference s, reference name, target ratio or None)
 
-    def add(job, s, r, refname, target):
-        rows.append((job, s, r, refname, target))
+        def add(job, s, r, refname, target):
+            rows.append((job, s, r, refname, target))
 
-    def thr(x):
-        return f" (OpenBLAS threads: {x['blas_threads']})"
+        def thr(x):
+            return f" (OpenBLAS threads: {x['blas_threads']})"
 
-    add("start-up (trivial file vs python import)", st_sb, st_py, "python3 -c import numpy, scipy.linalg, scipy.signal", 1 / 20)
-    for n in (10, 50, 200, 500):
-        s, r = sbget("eigenvalues", n), refget("eigenvalues", n)
-        add(f"eigenvalues n={n}", s and s["median_s"], r["median_s"], "numpy.linalg.eigvals" + thr(r), 1.0 if n <= 50 else 1.5 if n == 200 else None)
-    for n in (10, 50, 200):
-        s, r = sbget("expm", n), refget("expm", n)
-        add(f"expm n={n}", s and s["median_s"], r["median_s"], "scipy.linalg.expm" + thr(r), 1.0 if n <= 50 else 1.5)
-    for n in (10, 50, 200):
-        s, r = sbget("lyapunov", n), refget("lyapunov", n)
-        add(f"lyapunov n={n}", s and s["median_s"], r["median_s"], "solve_continuous_lyapunov" + thr(r), 1.0 if n <= 50 else 1.5)
-    for n in (10, 50, 200):
-        s, r = sbget("riccati", n), refget("riccati", n)
-        add(f"riccati n={n}", s and s["median_s"], r["median_s"], "solve_continuous_are" + thr(r), 1.0 if n <= 50 else 1.5)
-    for n in (10, 50, 200):
-        s, r = sbget("freq_hessenberg", n), refget("freq_dense", n)
-        add(f"freq 1000 pts n={n} (Hessenberg)", s and s["median_s"], r["median_s"], "numpy.linalg.solve per point" + thr(r), 1.0 if n <= 50 else 1.5)
-        rb = refget("freq_dense_batched", n)
-        add(f"freq 1000 pts n={n} (Hessenberg)", s and s["median_s"], rb["median_s"], "numpy.linalg.solve batched" + thr(rb), None)
-        d = sbget("freq_dense", n)
-        add(f"freq 1000 pts n={n} (Hessenberg vs own dense)", s and s["median_s"], d and d["median_s"], "statebook dense LU per point", 1 / 3 if n == 200 else None)
-    for steps in (100_000, 1_000_000):
-        loop = sbget("sim_reference_loop", 10, steps=steps)
-        for sbname, refname, what in (("simulate", "lsim", "continuous, linear hold"),
-                                      ("simulate_discrete", "dlsim", "discrete")):
-            sim = sbget(sbname, 10, steps=steps)
-            r = refget(refname, 10, steps=steps)
-            job = f"simulate 10 states {steps:.0e} samples ({what})"
-            add(job, sim and sim.get("median_s"), r["median_s"], f"scipy.signal.{refname}" + thr(r), 1 / 50)
-            add(job, sim and sim.get("median_s"), loop and loop["median_s"], "reference loop (multiply-add limit)", 3.0)
-    demo = sbget("demo_drive_shaft")
-    add("demo drive-shaft-reduction end to end", demo and demo["median_s"], None, "—", None)
+        add("start-up (trivial file vs python import)", st_sb, st_py, "python3 -c import numpy, scipy.linalg, scipy.signal", 1 / 20)
+        for n in (10, 50, 200, 500):
+            s, r = sbget("eigenvalues", n), refget("eigenvalues", n)
+            add(f"eigenvalues n={n}", s and s["median_s"], r["median_s"], "numpy.linalg.eigvals" + thr(r), 1.0 if n <= 50 else 1.5 if n == 200 else None)
+        for n in (10, 50, 200):
+            s, r = sbget("expm", n), refget("expm", n)
+            add(f"expm n={n}", s and s["median_s"], r["median_s"], "scipy.linalg.expm" + thr(r), 1.0 if n <= 50 else 1.5)
+        for n in (10, 50, 200):
+            s, r = sbget("lyapunov", n), refget("lyapunov", n)
+            add(f"lyapunov n={n}", s and s["median_s"], r["median_s"], "solve_continuous_lyapunov" + thr(r), 1.0 if n <= 50 else 1.5)
+        for n in (10, 50, 200):
+            s, r = sbget("riccati", n), refget("riccati", n)
+            add(f"riccati n={n}", s and s["median_s"], r["median_s"], "solve_continuous_are" + thr(r), 1.0 if n <= 50 else 1.5)
+        for n in (10, 50, 200):
+            s, r = sbget("freq_hessenberg", n), refget("freq_dense", n)
+            add(f"freq 1000 pts n={n} (Hessenberg)", s and s["median_s"], r["median_s"], "numpy.linalg.solve per point" + thr(r), 1.0 if n <= 50 else 1.5)
+            rb = refget("freq_dense_batched", n)
+            add(f"freq 1000 pts n={n} (Hessenberg)", s and s["median_s"], rb["median_s"], "numpy.linalg.solve batched" + thr(rb), None)
+            d = sbget("freq_dense", n)
+            add(f"freq 1000 pts n={n} (Hessenberg vs own dense)", s and s["median_s"], d and d["median_s"], "statebook dense LU per point", 1 / 3 if n == 200 else None)
+        for steps in (100_000, 1_000_000):
+            loop = sbget("sim_reference_loop", 10, steps=steps)
+            for sbname, refname, what in (("simulate", "lsim", "continuous, linear hold"),
+                                          ("simulate_discrete", "dlsim", "discrete")):
+                sim = sbget(sbname, 10, steps=steps)
+                r = refget(refname, 10, steps=steps)
+                job = f"simulate 10 states {steps:.0e} samples ({what})"
+                add(job, sim and sim.get("median_s"), r["median_s"], f"scipy.signal.{refname}" + thr(r), 1 / 50)
+                add(job, sim and sim.get("median_s"), loop and loop["median_s"], "reference loop (multiply-add limit)", 3.0)
+        demo = sbget("demo_drive_shaft")
+        add("demo drive-shaft-reduction end to end", demo and demo["median_s"], None, "—", None)
+        return rows, sbget
+
+    # Per job: medians over the rounds of each side and of the per-round ratio (each
+    # round runs both sides within a few minutes, so slow drift on a shared machine
+    # affects both), with the spread of the per-round ratios.
+    tables = [build_rows(sb, ref) for sb, ref in per_round]
+    sbget = tables[0][1]
+    ref = per_round[0][1]
+
+    def med(v):
+        v = sorted(x for x in v if x is not None)
+        return v[len(v) // 2] if v else None
+
+    rows = []
+    for i, (job, _, _, refname, target) in enumerate(tables[0][0]):
+        col = [t[0][i] for t in tables]
+        ss = [c[1] for c in col]
+        rs = [c[2] for c in col]
+        ratios = [a / b for a, b in zip(ss, rs) if a is not None and b]
+        rows.append((job, med(ss), med(rs), refname, target, med(ratios), ratios))
 
     mach = machine()
     mac = sbget("mac_peak")
@@ -309,11 +342,10 @@ def main():
     if mac:
         head.append(f"Multiply-add peak of this build (8 chains in L1): {mac['gmac_per_s']:.2f} G/s")
     lines = [
-        "| job | statebook | reference | ratio | target | reference job |",
-        "|---|---:|---:|---:|---:|---|",
+        "| job | statebook | reference | ratio | ratio per round | target | reference job |",
+        "|---|---:|---:|---:|---:|---:|---|",
     ]
-    for job, s, r, refname, target in rows:
-        ratio = (s / r) if (s is not None and r) else None
+    for job, s, r, refname, target, ratio, ratios in rows:
         if target is None:
             tgt = ""
         elif ratio is None:
@@ -323,14 +355,19 @@ def main():
             tgt = f"≤ {target:.3g} {mark}"
         lines.append(
             f"| {job} | {fmt_t(s) if s is not None else 'not available'} | {fmt_t(r)} | "
-            f"{'' if ratio is None else f'{ratio:.3g}'} | {tgt} | {refname} |"
+            f"{'' if ratio is None else f'{ratio:.3g}'} | "
+            f"{' '.join(f'{x:.2g}' for x in ratios) if len(ratios) > 1 else ''} | {tgt} | {refname} |"
         )
     text = "\n".join(head) + "\n\n" + "\n".join(lines) + "\n"
     print(text)
     if md_path:
         with open(md_path, "w") as fh:
             fh.write("# Benchmark results\n\n")
-            fh.write("Produced by `python3 benches/compare.py --markdown benches/RESULTS.md`. Medians; ratio = statebook / reference (below 1: statebook faster).\n\n")
+            fh.write("Produced by `python3 benches/compare.py --markdown benches/RESULTS.md`. "
+                     f"{len(per_round)} rounds, each running statebook's kernels and then the "
+                     "reference on the same inputs; times are medians over the rounds, ratio "
+                     "= statebook / reference, the median of the per-round ratios (below 1: "
+                     "statebook faster).\n\n")
             fh.write(text)
 
 

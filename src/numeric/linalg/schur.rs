@@ -569,12 +569,24 @@ fn larfg(nr: usize, v: &mut [f64; 3]) -> f64 {
         return 0.0;
     }
     let norm_tail = |v: &[f64; 3]| v[1..nr].iter().fold(0.0f64, |s, x| s.hypot(*x));
-    let mut xnorm = norm_tail(v);
+    // Entries within 2^±500: plain square roots of sums of squares cannot overflow or
+    // underflow, and cost far less than `hypot` (which guards the general case).
+    let amax = v[..nr].iter().fold(0.0f64, |m, x| m.max(x.abs()));
+    let safe = (2f64.powi(-500)..=2f64.powi(500)).contains(&amax);
+    let mut xnorm = if safe {
+        v[1..nr].iter().map(|x| x * x).sum::<f64>().sqrt()
+    } else {
+        norm_tail(v)
+    };
     if xnorm == 0.0 {
         return 0.0;
     }
     let mut alpha = v[0];
-    let mut beta = -sign(alpha.hypot(xnorm), alpha);
+    let mut beta = if safe {
+        -sign((alpha * alpha + xnorm * xnorm).sqrt(), alpha)
+    } else {
+        -sign(alpha.hypot(xnorm), alpha)
+    };
     let safmin = f64::MIN_POSITIVE / (0.5 * f64::EPSILON);
     let rsafmn = 1.0 / safmin;
     let mut knt = 0;
