@@ -138,9 +138,29 @@ impl Powers {
 fn combine(terms: &[(&DMatrix<f64>, f64)], c_identity: f64) -> DMatrix<f64> {
     let n = terms[0].0.nrows();
     let mut out = DMatrix::<f64>::zeros(n, n);
-    for (m, c) in terms {
-        for (o, v) in out.as_mut_slice().iter_mut().zip(m.as_slice()) {
-            *o += c * v;
+    let o = out.as_mut_slice();
+    // Up to four terms per pass (each output entry loaded and stored once per pass).
+    for chunk in terms.chunks(4) {
+        match chunk {
+            [(a, ca), (b, cb), (c, cc), (d, cd)] => {
+                let (a, b, c, d) = (a.as_slice(), b.as_slice(), c.as_slice(), d.as_slice());
+                for i in 0..o.len() {
+                    o[i] += ca * a[i] + cb * b[i] + cc * c[i] + cd * d[i];
+                }
+            }
+            [(a, ca), (b, cb), (c, cc)] => {
+                let (a, b, c) = (a.as_slice(), b.as_slice(), c.as_slice());
+                for i in 0..o.len() {
+                    o[i] += ca * a[i] + cb * b[i] + cc * c[i];
+                }
+            }
+            _ => {
+                for (m, c) in chunk {
+                    for (oi, v) in o.iter_mut().zip(m.as_slice()) {
+                        *oi += c * v;
+                    }
+                }
+            }
         }
     }
     for i in 0..n {
