@@ -16,6 +16,7 @@
 
 use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
+use crate::numeric::linalg::kernels;
 use crate::numeric::linalg::schur::{RealSchur, SchurParams};
 use nalgebra::{Complex, DMatrix};
 
@@ -399,9 +400,7 @@ fn solve_continuous_by_columns(
                 for t in 0..l0 {
                     let rt = r[(t, l0 + jj)];
                     if rt != 0.0 {
-                        for (x, y) in col.iter_mut().zip(&left[t * m..(t + 1) * m]) {
-                            *x -= rt * y;
-                        }
+                        kernels::axpy(col, -rt, &left[t * m..(t + 1) * m]);
                     }
                 }
             }
@@ -450,9 +449,7 @@ fn solve_continuous_by_columns(
                     col[k0 + ii] = xv;
                     if xv != 0.0 {
                         let sc = &sd[(k0 + ii) * m..(k0 + ii) * m + k0];
-                        for (zi, si) in col[..k0].iter_mut().zip(sc) {
-                            *zi -= xv * si;
-                        }
+                        kernels::axpy(&mut col[..k0], -xv, sc);
                     }
                 }
             }
