@@ -27,6 +27,16 @@ pub fn num(name: &str) -> impl Fn(NumError) -> Box<EvalAltResult> + '_ {
     move |e| fail(format!("{name}: {e}"))
 }
 
+/// The function pointer a value holds, if any — without copying a value of another type
+/// (a `clone().try_cast()` would copy a million-row matrix only to find it is not one).
+pub fn as_fnptr(v: &Dynamic) -> Option<rhai::FnPtr> {
+    if v.is_fnptr() {
+        v.clone().try_cast::<rhai::FnPtr>()
+    } else {
+        None
+    }
+}
+
 /// The user-facing name of a value's type.
 pub fn type_name(v: &Dynamic) -> String {
     if v.is::<Matrix>() {

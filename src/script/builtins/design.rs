@@ -173,12 +173,10 @@ impl Operand {
         if let Some(m) = v.read_lock::<Matrix>() {
             return Some(Operand::Gain(m.0.clone()));
         }
-        if let Some(x) = v.clone().try_cast::<FLOAT>() {
+        if let Ok(x) = v.as_float() {
             return Some(Operand::Scalar(x));
         }
-        v.clone()
-            .try_cast::<INT>()
-            .map(|i| Operand::Scalar(i as f64))
+        v.as_int().ok().map(|i| Operand::Scalar(i as f64))
     }
 
     fn dt(&self) -> Option<f64> {

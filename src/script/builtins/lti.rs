@@ -13,7 +13,7 @@ use crate::script::convert::{
 use crate::script::state;
 use crate::script::types::{Complex, System, TransferFunction};
 use nalgebra::DMatrix;
-use rhai::{Array, Dynamic, Engine, Map, NativeCallContext, FLOAT, INT};
+use rhai::{Array, Dynamic, Engine, Map, NativeCallContext, INT};
 
 mod docs;
 mod files;
@@ -22,10 +22,10 @@ pub use docs::DOCS;
 fn d_matrix(v: &Dynamic, p: usize, m: usize) -> Rr<DMatrix<f64>> {
     // A plain 0 stands for the zero feedthrough of any size.
     if let Some(x) = v
-        .clone()
-        .try_cast::<INT>()
+        .as_int()
+        .ok()
         .map(|i| i as f64)
-        .or_else(|| v.clone().try_cast::<FLOAT>())
+        .or_else(|| v.as_float().ok())
     {
         if x == 0.0 {
             return Ok(DMatrix::zeros(p, m));

@@ -99,7 +99,7 @@ pub fn register(engine: &mut Engine, st: &Arc<SessionState>) {
             .to_string())
     });
     engine.register_fn("require", |c: Dynamic, m: Dynamic| -> Rr<()> {
-        let Some(ok) = c.clone().try_cast::<bool>() else {
+        let Ok(ok) = c.as_bool() else {
             return Err(fail(format!(
                 "require: condition must be true or false, found {}",
                 crate::script::convert::type_name(&c)

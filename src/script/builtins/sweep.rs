@@ -154,7 +154,7 @@ fn run_options(m: &Map) -> Rr<RunOptions> {
 }
 
 fn case_function(f: &Dynamic) -> Rr<FnPtr> {
-    if let Some(p) = f.clone().try_cast::<FnPtr>() {
+    if let Some(p) = crate::script::convert::as_fnptr(f) {
         return Ok(p);
     }
     if f.is_string() {
@@ -240,7 +240,7 @@ fn random_cases(
             "random_cases: {count} cases exceed the array-size limit {limit}"
         )));
     }
-    let Some(seed) = seed.clone().try_cast::<INT>() else {
+    let Ok(seed) = seed.as_int() else {
         return Err(fail(format!(
             "random_cases: seed must be an integer, found {}",
             type_name(seed)

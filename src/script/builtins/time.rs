@@ -110,7 +110,7 @@ fn free(s: &Dynamic, x0: &Dynamic, t_final: Option<&Dynamic>) -> Rr<Dynamic> {
 fn input_matrix(ctx: &NativeCallContext, u: &Dynamic, t: &[f64], m: usize) -> Rr<DMatrix<f64>> {
     let f = "simulate";
     let n = t.len();
-    if let Some(fp) = u.clone().try_cast::<FnPtr>() {
+    if let Some(fp) = crate::script::convert::as_fnptr(u) {
         let mut out = DMatrix::zeros(n, m);
         for (k, &tk) in t.iter().enumerate() {
             let v: Dynamic = fp
@@ -367,10 +367,10 @@ fn call_vector(
     let v: Dynamic = fp
         .call_within_context(ctx, args)
         .map_err(|e| e.to_string())?;
-    if let Some(x) = v.clone().try_cast::<FLOAT>() {
+    if let Ok(x) = v.as_float() {
         return Ok(vec![x]);
     }
-    if let Some(i) = v.clone().try_cast::<INT>() {
+    if let Ok(i) = v.as_int() {
         return Ok(vec![i as f64]);
     }
     if let Some(a) = v.read_lock::<Array>() {
@@ -401,7 +401,7 @@ fn call_vector(
 }
 
 fn function_arg(v: &Dynamic, fname: &str, arg: &str) -> Rr<FnPtr> {
-    if let Some(fp) = v.clone().try_cast::<FnPtr>() {
+    if let Some(fp) = crate::script::convert::as_fnptr(v) {
         return Ok(fp);
     }
     if v.is_string() {

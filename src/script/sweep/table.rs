@@ -235,7 +235,7 @@ fn csv_value(v: &Dynamic) -> String {
     if v.is_unit() {
         return String::new();
     }
-    if let Some(x) = v.clone().try_cast::<f64>() {
+    if let Ok(x) = v.as_float() {
         return if x.is_finite() {
             format!("{x:?}")
         } else if x.is_nan() {
@@ -246,13 +246,13 @@ fn csv_value(v: &Dynamic) -> String {
             "-inf".into()
         };
     }
-    if let Some(i) = v.clone().try_cast::<i64>() {
+    if let Ok(i) = v.as_int() {
         return i.to_string();
     }
     if v.is_string() {
         return csv_field(&v.to_string());
     }
-    if let Some(b) = v.clone().try_cast::<bool>() {
+    if let Ok(b) = v.as_bool() {
         return b.to_string();
     }
     if let Some(z) = v.read_lock::<crate::script::types::Complex>() {
