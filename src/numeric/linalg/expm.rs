@@ -239,73 +239,120 @@ fn log2_leading_error_coefficient(m: usize) -> f64 {
     2.0 * log2_factorial(m) - log2_factorial(2 * m) - log2_factorial(2 * m + 1)
 }
 
-/// log₂‖|A|ᵏ‖₁ for k = 1, 2, …, extended on demand.
+/// log₂‖|A|ᵏ‖₁ for k = 1, 2, …, extended on demand, and brackets for higher powers.
 ///
 /// Computed exactly, not estimated: for a non-negative matrix the 1-norm is the largest
-/// entry of eᵀ|A|ᵏ, so each further power costs one vector–matrix product (O(n²), a dot
-/// product per column); the vector is renormalised after each product so that nothing
-/// overflows.
+/// entry of eᵀ|A|ᵏ = ((|A|ᵀ)ᵏ e)ᵀ, so each further power costs one vector–matrix product
+/// (O(n²), a dot product per column); the vector is renormalised after each product
+/// (vₖ = (|A|ᵀ)ᵏ e / ‖|A|ᵏ‖₁, largest entry 1) so that nothing overflows.
+///
+/// Brackets (Collatz–Wielandt): with w = |A|ᵀ vₖ and λ₋ ≤ wᵢ/vᵢ ≤ λ₊ over the entries,
+/// λ₋ᵖ⁻ᵏ vₖ ≤ (|A|ᵀ)ᵖ⁻ᵏ vₖ ≤ λ₊ᵖ⁻ᵏ vₖ entrywise (|A|ᵀ is non-negative), so
+/// log₂‖|A|ᵖ‖₁ lies in log₂‖|A|ᵏ‖₁ + (p − k)·[log₂λ₋, log₂λ₊]. The bracket narrows as vₖ
+/// approaches the Perron vector, usually within a few products.
 struct AbsPowerNorms {
     abs: DMatrix<f64>,
-    v: nalgebra::DVector<f64>,
+    v: Vec<f64>,
     log2: Vec<f64>,
     zero: bool,
 }
 
 impl AbsPowerNorms {
     fn new(a: &DMatrix<f64>) -> Self {
-        let n = a.nrows();
         AbsPowerNorms {
             abs: a.abs(),
-            v: nalgebra::DVector::from_element(n, 1.0),
+            v: vec![1.0; a.nrows()],
             log2: Vec::new(),
             zero: false,
         }
     }
 
-    /// log₂‖|A|ᵏ‖₁ (−∞ once a power vanishes).
-    fn log2_norm(&mut self, k: usize) -> f64 {
-        while self.log2.len() < k && !self.zero {
-            // wⱼ = Σᵢ vᵢ|aᵢⱼ|: one dot product with each column of |A|.
-            let n = self.v.len();
-            let v = self.v.as_slice();
-            let w = nalgebra::DVector::from_iterator(
-                n,
-                self.abs
-                    .as_slice()
-                    .chunks_exact(n)
-                    .map(|c| kernels::dot(c, v)),
-            );
-            let top = kernels::max_abs(w.as_slice());
-            if top == 0.0 {
-                self.zero = true;
-                break;
+    /// w = |A|ᵀ v for the current v: wⱼ = Σᵢ vᵢ|aᵢⱼ|, one dot product per column.
+    fn product(&self) -> Vec<f64> {
+        let n = self.v.len();
+        self.abs
+            .as_slice()
+            .chunks_exact(n)
+            .map(|c| kernels::dot(c, &self.v))
+            .collect()
+    }
+
+    /// Takes the next exact power, given w = |A|ᵀ vₖ.
+    fn advance(&mut self, w: Vec<f64>) {
+        let top = kernels::max_abs(&w);
+        if top == 0.0 {
+            self.zero = true;
+            return;
+        }
+        let last = self.log2.last().copied().unwrap_or(0.0);
+        self.log2.push(last + top.log2());
+        self.v = w.into_iter().map(|x| x / top).collect();
+    }
+
+    /// An interval holding log₂‖|A|ᵖ‖₁, exact (a point) once p products have been taken.
+    /// Takes products until the interval decides `settled`, or up to p.
+    fn log2_norm_bracket(&mut self, p: usize, settled: impl Fn(f64, f64) -> bool) -> (f64, f64) {
+        loop {
+            let k = self.log2.len();
+            if self.zero {
+                return (f64::NEG_INFINITY, f64::NEG_INFINITY);
             }
-            let last = self.log2.last().copied().unwrap_or(0.0);
-            self.log2.push(last + top.log2());
-            self.v = w / top;
+            if k >= p {
+                return (self.log2[p - 1], self.log2[p - 1]);
+            }
+            let w = self.product();
+            let (mut lo, mut hi) = (f64::INFINITY, 0.0f64);
+            for (wi, vi) in w.iter().zip(&self.v) {
+                if *vi > 0.0 {
+                    let r = wi / vi;
+                    lo = lo.min(r);
+                    hi = hi.max(r);
+                } else if *wi > 0.0 {
+                    hi = f64::INFINITY; // no finite upper ratio
+                }
+            }
+            let base = self.log2.last().copied().unwrap_or(0.0);
+            let steps = (p - k) as f64;
+            let bracket = (base + steps * lo.log2(), base + steps * hi.log2());
+            if k > 0
+                && bracket.0.is_finite()
+                && bracket.1.is_finite()
+                && settled(bracket.0, bracket.1)
+            {
+                return bracket;
+            }
+            self.advance(w);
         }
-        if self.zero && self.log2.len() < k {
-            f64::NEG_INFINITY
-        } else {
-            self.log2[k - 1]
-        }
+    }
+
+    /// log₂‖|A|ᵏ‖₁ exactly (−∞ once a power vanishes).
+    #[cfg(test)]
+    fn log2_norm(&mut self, k: usize) -> f64 {
+        self.log2_norm_bracket(k, |_, _| false).0
     }
 
     /// ℓ(2⁻ˢA, m) of Al-Mohy & Higham 2009, eq. (5.1): the number of extra squarings that
     /// keeps the leading backward-error term |c₂ₘ₊₁|·‖|B|^(2m+1)‖₁/‖B‖₁ (B = 2⁻ˢA) below
     /// u = 2⁻⁵³. It guards against the norm estimates undershooting for strongly
-    /// non-normal A. `log2_a_norm` is log₂‖A‖₁; scaling by 2⁻ˢ enters exactly.
+    /// non-normal A. `log2_a_norm` is log₂‖A‖₁; scaling by 2⁻ˢ enters exactly. The value
+    /// is exact: products are taken until both ends of the bracket of ‖|A|^(2m+1)‖₁ give
+    /// the same ℓ (ℓ moves in steps of 2m bits of the norm, so this is usually early).
     fn ell(&mut self, m: usize, s: i32, log2_a_norm: f64) -> i32 {
         let p = 2 * m + 1;
-        let log2_power = self.log2_norm(p) - (p as f64) * s as f64;
-        let log2_alpha = log2_leading_error_coefficient(m) + log2_power - (log2_a_norm - s as f64);
-        let extra = ((log2_alpha + 53.0) / (2 * m) as f64).ceil();
-        if extra.is_finite() {
-            extra.max(0.0) as i32
-        } else {
-            0
-        }
+        let of = |log2_norm: f64| {
+            let log2_power = log2_norm - (p as f64) * s as f64;
+            let log2_alpha =
+                log2_leading_error_coefficient(m) + log2_power - (log2_a_norm - s as f64);
+            let extra = ((log2_alpha + 53.0) / (2 * m) as f64).ceil();
+            if extra.is_finite() {
+                extra.max(0.0) as i32
+            } else {
+                0
+            }
+        };
+        let (lo, hi) = self.log2_norm_bracket(p, |lo, hi| of(lo) == of(hi));
+        debug_assert_eq!(of(lo), of(hi));
+        of(hi)
     }
 }
 
@@ -687,6 +734,66 @@ mod tests {
         for (m, recip) in exact {
             let got = (-log2_leading_error_coefficient(m)).exp2();
             assert_close!(got, recip, 0.0, 1e-13);
+        }
+    }
+
+    #[test]
+    fn bracketed_ell_equals_the_exact_value() {
+        // ℓ from the Collatz–Wielandt brackets against ℓ from the exact norm of every power,
+        // over dense, graded, non-negative, triangular, nilpotent and reducible matrices.
+        let exact_ell = |a: &DMatrix<f64>, m: usize, s: i32| {
+            let mut exact = AbsPowerNorms::new(a);
+            let l = exact.log2_norm(2 * m + 1);
+            let log2_a = one_norm(a).log2();
+            let p = (2 * m + 1) as f64;
+            let log2_alpha =
+                log2_leading_error_coefficient(m) + l - p * s as f64 - (log2_a - s as f64);
+            let v = ((log2_alpha + 53.0) / (2 * m) as f64).ceil();
+            if v.is_finite() {
+                v.max(0.0) as i32
+            } else {
+                0
+            }
+        };
+        let mut rng = Rng::new(21);
+        let mut cases: Vec<DMatrix<f64>> = Vec::new();
+        for &n in &[1usize, 2, 5, 20, 50] {
+            for &scale in &[0.01, 1.0, 8.0, 100.0] {
+                cases.push(rng.matrix(n, n) * scale);
+                cases.push(rng.matrix(n, n).abs() * scale);
+                let mut tri = rng.matrix(n, n) * scale;
+                for j in 0..n {
+                    for i in j + 1..n {
+                        tri[(i, j)] = 0.0;
+                    }
+                }
+                cases.push(tri.clone());
+                for i in 0..n {
+                    tri[(i, i)] = 0.0; // strictly triangular: nilpotent
+                }
+                cases.push(tri);
+                let g = DMatrix::from_fn(n, n, |i, j| {
+                    rng.normal() * 10f64.powf((i as f64 - j as f64) * 0.8) * scale
+                });
+                cases.push(g);
+            }
+        }
+        // Reducible: a zero column and a zero row.
+        let mut red = rng.matrix(6, 6);
+        red.column_mut(2).fill(0.0);
+        red.row_mut(4).fill(0.0);
+        cases.push(red);
+        for a in &cases {
+            if one_norm(a) == 0.0 {
+                continue;
+            }
+            for m in [3usize, 5, 7, 9, 13] {
+                for s in [0, 1, 3] {
+                    let mut bracketed = AbsPowerNorms::new(a);
+                    let got = bracketed.ell(m, s, one_norm(a).log2());
+                    assert_eq!(got, exact_ell(a, m, s), "m {m}, s {s}, A = {a}");
+                }
+            }
         }
     }
 
