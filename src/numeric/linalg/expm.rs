@@ -468,16 +468,26 @@ pub fn expm(a: &DMatrix<f64>) -> NumResult<DMatrix<f64>> {
 
 /// Matrix exponential e^A by scaling and squaring with Padé approximants.
 ///
-/// Algorithm 2.3 of Higham 2005, "The scaling and squaring method for the matrix
-/// exponential revisited" (SIAM J. Matrix Anal. Appl. 26(4)): with θₘ the constants of that
-/// paper's Table 2.3, use the [m/m] Padé approximant rₘ(A) for the smallest
-/// m ∈ {3, 5, 7, 9} with ‖A‖₁ ≤ θₘ; otherwise s = ⌈log₂(‖A‖₁/θ₁₃)⌉, r₁₃(A/2ˢ), squared s
-/// times. Optional balancing (Parlett & Reinsch 1969, "Balancing a matrix for calculation
-/// of eigenvalues and eigenvectors"): e^A = D e^B D⁻¹ with B = D⁻¹AD, D a power-of-two
-/// diagonal, used only when ‖B‖₁ < ‖A‖₁.
+/// Degree and scaling by Algorithm 5.1 of Al-Mohy & Higham 2009, "A new scaling and
+/// squaring algorithm for the matrix exponential" (SIAM J. Matrix Anal. Appl. 31(3)), the
+/// refinement of Higham 2005, "The scaling and squaring method for the matrix exponential
+/// revisited" (SIAM J. Matrix Anal. Appl. 26(4)): the [m/m] Padé approximant rₘ for the
+/// smallest m ∈ {3, 5, 7, 9} whose bound θₘ (Higham 2005, Table 2.3) exceeds the
+/// ‖Aᵖ‖₁^(1/p) that govern its backward error and whose ℓ(A, m) correction is zero;
+/// otherwise r₁₃(A/2ˢ) squared s times, s from those quantities and θ₁₃ = 4.25 plus
+/// ℓ(A/2ˢ, 13) (the norms used are described at `pade_by_power_estimates`). The ‖Aᵖ‖₁
+/// can be far below ‖A‖₁ᵖ for non-normal A, so this takes fewer squarings than the 2005 rule on
+/// ‖A‖₁ alone and avoids over-scaling; matrices with ‖A‖₁ > 2⁶⁰, whose powers could
+/// overflow, use the 2005 rule. Upper-triangular A keeps an exactly computed diagonal and
+/// first superdiagonal through the squarings (the paper's Code Fragment 2.1). Optional
+/// balancing (Parlett & Reinsch 1969, "Balancing a matrix for calculation of eigenvalues
+/// and eigenvectors"): e^A = D e^B D⁻¹ with B = D⁻¹AD, D a power-of-two diagonal, used
+/// only when ‖B‖₁ < ‖A‖₁.
 ///
-/// Cost: πₘ ∈ {2, 3, 4, 5, 6} matrix products for m ∈ {3, 5, 7, 9, 13}, one LU solve with
-/// n right-hand sides and s further products, i.e. about (2πₘ + 8/3 + 2s)·n³ flops.
+/// Cost: πₘ ∈ {2, 3, 4, 5, 6} matrix products for m ∈ {3, 5, 7, 9, 13}, one LU
+/// factorisation and right division with n right-hand sides, s further products and
+/// O(n²) per power-iteration step of the ℓ correction, i.e. about (2πₘ + 8/3 + 2s)·n³
+/// flops.
 ///
 /// Accuracy: θₘ is chosen so that rₘ(2⁻ˢA)^(2ˢ) = e^(A+ΔA) with ‖ΔA‖₁ ≤ u‖A‖₁ in exact
 /// arithmetic, u = 2⁻⁵³ (a backward-error bound); rounding in the squarings adds errors

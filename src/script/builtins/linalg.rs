@@ -57,7 +57,7 @@ pub const DOCS: &[Doc] = &[
         name: "exp",
         family: "linear algebra",
         usage: "A.exp() → Matrix",
-        summary: "the matrix exponential e^A (scaling and squaring, Padé; Higham 2005)",
+        summary: "the matrix exponential e^A (scaling and squaring, Padé; Al-Mohy & Higham 2009)",
         details: "",
         example: "matrix([[0, 1], [-1, 0]]).exp()   // a rotation by 1 rad",
     },
