@@ -1,7 +1,6 @@
 //! Command-line integration tests: the binary as a user runs it.
 
-use std::io::Write;
-use std::process::{Output, Stdio};
+use std::process::Output;
 
 mod common;
 use common::cli::{bin, text};
@@ -102,21 +101,8 @@ fn version_flag() {
 
 #[test]
 fn repl_on_piped_input_with_continued_lines() {
-    let mut child = bin()
-        .stdin(Stdio::piped())
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .current_dir(temp_dir("repl"))
-        .spawn()
-        .expect("spawn");
     let input = "let A = matrix([[1, 2],\n    [3, 4]]);\nA.determinant()\nfn twice(x) {\n  x * 2\n}\ntwice(21)\nhelp trace\n";
-    child
-        .stdin
-        .take()
-        .expect("stdin")
-        .write_all(input.as_bytes())
-        .expect("write");
-    let out = child.wait_with_output().expect("wait");
+    let out = common::cli::repl_piped(&temp_dir("repl"), input);
     let s = text(&out.stdout);
     assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
     assert!(s.contains("-2"), "{s}");
@@ -127,20 +113,7 @@ fn repl_on_piped_input_with_continued_lines() {
 
 #[test]
 fn repl_piped_error_sets_exit_code_and_continues() {
-    let mut child = bin()
-        .stdin(Stdio::piped())
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .current_dir(temp_dir("repl2"))
-        .spawn()
-        .expect("spawn");
-    child
-        .stdin
-        .take()
-        .expect("stdin")
-        .write_all(b"identity(2).inverse(\n1 +\n;\n7 * 6\n")
-        .expect("write");
-    let out = child.wait_with_output().expect("wait");
+    let out = common::cli::repl_piped(&temp_dir("repl2"), "identity(2).inverse(\n1 +\n;\n7 * 6\n");
     assert_eq!(out.status.code(), Some(1));
     assert!(text(&out.stdout).contains("42"));
     assert!(text(&out.stderr).contains("error:"));

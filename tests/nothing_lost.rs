@@ -1,9 +1,8 @@
 //! Nothing lost, no bad file crashes: the REPL's session log (piped input), turning it
 //! into an analysis file, and clear errors for empty, enormous and non-UTF-8 files.
 
-use std::io::Write;
 use std::path::{Path, PathBuf};
-use std::process::{Output, Stdio};
+use std::process::Output;
 
 mod common;
 use common::cli::{bin, text};
@@ -13,20 +12,7 @@ fn temp_dir(name: &str) -> std::path::PathBuf {
 }
 
 fn repl(dir: &Path, input: &str) -> Output {
-    let mut child = bin()
-        .current_dir(dir)
-        .stdin(Stdio::piped())
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .spawn()
-        .expect("spawn");
-    child
-        .stdin
-        .take()
-        .expect("stdin")
-        .write_all(input.as_bytes())
-        .expect("write");
-    child.wait_with_output().expect("wait")
+    common::cli::repl_piped(dir, input)
 }
 
 fn the_log(dir: &Path) -> PathBuf {

@@ -1,7 +1,22 @@
 //! Test support shared by the numerical unit tests: seeded random matrices and the one
 //! `assert_close!` macro (STYLE.md § Tests). Compiled only for tests.
 
+use crate::numeric::lti::system::StateSpace;
 use nalgebra::DMatrix;
+
+/// A continuous single-input, single-output model from row-major `a` (n×n, n = `b.len()`),
+/// the input column `b`, the output row `c` and the feedthrough `d`.
+pub fn siso(a: &[f64], b: &[f64], c: &[f64], d: f64) -> StateSpace {
+    let n = b.len();
+    StateSpace::new(
+        DMatrix::from_row_slice(n, n, a),
+        DMatrix::from_column_slice(n, 1, b),
+        DMatrix::from_row_slice(1, n, c),
+        DMatrix::from_element(1, 1, d),
+        0.0,
+    )
+    .expect("a valid test model")
+}
 
 /// A small, fast, seeded generator (SplitMix64, Steele, Lea & Flood 2014) so that tests are
 /// reproducible on every machine without a random-number crate.

@@ -1,8 +1,9 @@
 //! Helpers shared by the tests that drive the `statebook` binary.
 #![allow(dead_code)]
 
-use std::path::PathBuf;
-use std::process::Command;
+use std::io::Write;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output, Stdio};
 
 /// The binary under test.
 pub fn bin() -> Command {
@@ -20,4 +21,22 @@ pub fn temp_dir(suite: &str, name: &str) -> PathBuf {
 /// Process output as text.
 pub fn text(b: &[u8]) -> String {
     String::from_utf8_lossy(b).into_owned()
+}
+
+/// The REPL (`statebook` with no arguments) run in `dir` with `input` piped to it.
+pub fn repl_piped(dir: &Path, input: &str) -> Output {
+    let mut child = bin()
+        .current_dir(dir)
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .expect("spawn");
+    child
+        .stdin
+        .take()
+        .expect("stdin")
+        .write_all(input.as_bytes())
+        .expect("write");
+    child.wait_with_output().expect("wait")
 }

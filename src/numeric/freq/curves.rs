@@ -212,18 +212,8 @@ pub fn nyquist_curve(sys: &StateSpace, clip_radius: f64) -> NumResult<(Vec<f64>,
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::numeric::testing::siso;
     use nalgebra::DMatrix;
-
-    fn siso(a: &[f64], b: &[f64], c: &[f64], d: f64, n: usize) -> StateSpace {
-        StateSpace::new(
-            DMatrix::from_row_slice(n, n, a),
-            DMatrix::from_row_slice(n, 1, b),
-            DMatrix::from_row_slice(1, n, c),
-            DMatrix::from_element(1, 1, d),
-            0.0,
-        )
-        .unwrap()
-    }
 
     #[test]
     fn third_order_lag_phase_unwraps_to_minus_270() {
@@ -233,7 +223,6 @@ mod tests {
             &[0.0, 0.0, 1.0],
             &[1.0, 0.0, 0.0],
             0.0,
-            3,
         );
         let grid = common_grid(&[&sys]).unwrap();
         let c = &channel_curves(&sys, &grid).unwrap()[0];
@@ -264,7 +253,7 @@ mod tests {
 
     #[test]
     fn an_integrator_loop_is_clipped() {
-        let sys = siso(&[0.0], &[1.0], &[1.0], 0.0, 1);
+        let sys = siso(&[0.0], &[1.0], &[1.0], 0.0);
         let (re, im) = nyquist_curve(&sys, 5.0).unwrap();
         assert!(re.iter().any(|x| x.is_nan()));
         assert!(re

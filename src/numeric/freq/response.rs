@@ -184,14 +184,7 @@ mod tests {
     #[test]
     fn a_pole_on_the_axis_gives_infinity() {
         // Integrator 1/s at ω = 0.
-        let sys = StateSpace::new(
-            DMatrix::zeros(1, 1),
-            DMatrix::from_element(1, 1, 1.0),
-            DMatrix::from_element(1, 1, 1.0),
-            DMatrix::zeros(1, 1),
-            0.0,
-        )
-        .unwrap();
+        let sys = crate::numeric::testing::siso(&[0.0], &[1.0], &[1.0], 0.0);
         let g = frequency_response(&sys, &[0.0]).unwrap();
         assert!(g[0][(0, 0)].re.is_infinite());
     }

@@ -100,37 +100,29 @@ fn one_norm_scaled(a: &DMatrix<f64>) -> (f64, i32) {
     (norm, e)
 }
 
-/// Even powers of the argument of a Padé approximant, formed once and shared by the
-/// degree selection and the evaluation.
+/// Even powers A², A⁴, A⁶, A⁸ of the argument of a Padé approximant, formed once as
+/// needed and shared by the degree selection and the evaluation (A⁶ = A⁴A², A⁸ = A⁴A⁴).
 struct Powers {
-    a2: DMatrix<f64>,
-    a4: Option<DMatrix<f64>>,
-    a6: Option<DMatrix<f64>>,
-    a8: Option<DMatrix<f64>>,
+    even: Vec<DMatrix<f64>>,
 }
 
 impl Powers {
     fn new(a: &DMatrix<f64>) -> Self {
-        Powers {
-            a2: a * a,
-            a4: None,
-            a6: None,
-            a8: None,
+        Powers { even: vec![a * a] }
+    }
+
+    /// The first `count` (1 … 4) even powers, A², A⁴, …, forming the missing ones.
+    fn up_to(&mut self, count: usize) -> &[DMatrix<f64>] {
+        while self.even.len() < count.min(4) {
+            let next = match self.even.as_slice() {
+                [a2] => a2 * a2,
+                [a2, a4] => a4 * a2,
+                [_, a4, _] => a4 * a4,
+                _ => break,
+            };
+            self.even.push(next);
         }
-    }
-    fn a4(&mut self) -> &DMatrix<f64> {
-        let a2 = &self.a2;
-        self.a4.get_or_insert_with(|| a2 * a2)
-    }
-    fn a6(&mut self) -> &DMatrix<f64> {
-        self.a4();
-        let (a2, a4) = (&self.a2, self.a4.as_ref().expect("formed above"));
-        self.a6.get_or_insert_with(|| a4 * a2)
-    }
-    fn a8(&mut self) -> &DMatrix<f64> {
-        self.a4();
-        let a4 = self.a4.as_ref().expect("formed above");
-        self.a8.get_or_insert_with(|| a4 * a4)
+        &self.even[..count.min(self.even.len())]
     }
 }
 
@@ -176,13 +168,11 @@ fn combine(terms: &[(&DMatrix<f64>, f64)], c_identity: f64) -> DMatrix<f64> {
 fn pade(a: &DMatrix<f64>, p: &mut Powers, m: usize) -> NumResult<DMatrix<f64>> {
     let (u, v) = if m == 13 {
         let b = &B13;
-        let (a2, a4, a6) = {
-            p.a6();
-            (
-                &p.a2,
-                p.a4.as_ref().expect("formed"),
-                p.a6.as_ref().expect("formed"),
-            )
+        let [a2, a4, a6] = p.up_to(3) else {
+            return Err(NumError::no_solution(
+                "matrix exponential",
+                "internal: the even powers of A were not formed",
+            ));
         };
         let inner_u = a6 * combine(&[(a6, b[13]), (a4, b[11]), (a2, b[9])], 0.0);
         let u = a * combine(&[(&inner_u, 1.0), (a6, b[7]), (a4, b[5]), (a2, b[3])], b[1]);
@@ -197,29 +187,16 @@ fn pade(a: &DMatrix<f64>, p: &mut Powers, m: usize) -> NumResult<DMatrix<f64>> {
             _ => &B9,
         };
         // Even powers A², A⁴, … up to A^(m−1).
-        if m >= 5 {
-            p.a4();
-        }
-        if m >= 7 {
-            p.a6();
-        }
-        if m >= 9 {
-            p.a8();
-        }
-        let powers: Vec<&DMatrix<f64>> = [Some(&p.a2), p.a4.as_ref(), p.a6.as_ref(), p.a8.as_ref()]
-            .into_iter()
-            .take(m / 2)
-            .map(|x| x.expect("formed above"))
-            .collect();
+        let powers = p.up_to(m / 2);
         let odd: Vec<(&DMatrix<f64>, f64)> = powers
             .iter()
             .enumerate()
-            .map(|(k, m)| (*m, b[2 * k + 3]))
+            .map(|(k, m)| (m, b[2 * k + 3]))
             .collect();
         let even: Vec<(&DMatrix<f64>, f64)> = powers
             .iter()
             .enumerate()
-            .map(|(k, m)| (*m, b[2 * k + 2]))
+            .map(|(k, m)| (m, b[2 * k + 2]))
             .collect();
         (a * combine(&odd, b[1]), combine(&even, b[0]))
     };
@@ -367,18 +344,18 @@ fn pade_by_power_estimates(a: &DMatrix<f64>) -> NumResult<(DMatrix<f64>, i32)> {
     let mut abs_powers = AbsPowerNorms::new(a);
     let log2_a = one_norm(a).log2();
     let mut ell = |m: usize, s: i32| abs_powers.ell(m, s, log2_a);
-    let n2 = one_norm(&p.a2);
+    let n2 = p.up_to(1).first().map_or(0.0, one_norm);
     // m = 3: d₄ ≤ ‖A²‖^(1/2) and d₆ ≤ ‖A²‖^(1/2).
     if n2.sqrt() <= THETA[0].1 && ell(3, 0) == 0 {
         return Ok((pade(a, &mut p, 3)?, 0));
     }
-    let n4 = one_norm(p.a4());
+    let n4 = p.up_to(2).last().map_or(0.0, one_norm);
     let d4 = n4.powf(0.25);
     let eta1 = d4.max((n4 * n2).powf(1.0 / 6.0));
     if eta1 <= THETA[1].1 && ell(5, 0) == 0 {
         return Ok((pade(a, &mut p, 5)?, 0));
     }
-    let n6 = one_norm(p.a6());
+    let n6 = p.up_to(3).last().map_or(0.0, one_norm);
     let d6 = n6.powf(1.0 / 6.0);
     let d8 = d4; // ‖A⁸‖₁^(1/8) ≤ (‖A⁴‖₁²)^(1/8)
     let eta3 = d6.max(d8);
@@ -405,10 +382,12 @@ fn pade_by_power_estimates(a: &DMatrix<f64>) -> NumResult<(DMatrix<f64>, i32)> {
     }
     let a_s = scaled(a, 1, s);
     let mut ps = Powers {
-        a2: scaled(&p.a2, 2, s),
-        a4: p.a4.as_ref().map(|m| scaled(m, 4, s)),
-        a6: p.a6.as_ref().map(|m| scaled(m, 6, s)),
-        a8: None,
+        even: p
+            .up_to(3)
+            .iter()
+            .zip([2, 4, 6])
+            .map(|(m, k)| scaled(m, k, s))
+            .collect(),
     };
     Ok((pade(&a_s, &mut ps, 13)?, s))
 }

@@ -90,15 +90,7 @@ impl RealSchur {
                 t: a.clone(),
             });
         }
-        // Exact power-of-two scaling into a safe range.
-        let amax = a.amax();
-        let mut scale = 1.0;
-        let mut work = a.clone();
-        if amax > 0.0 && !(2f64.powi(-500)..=2f64.powi(500)).contains(&amax) {
-            let e = amax.log2().floor() as i32;
-            scale = 2f64.powi(e);
-            work *= 2f64.powi(-e);
-        }
+        let (work, scale) = scaled_into_safe_range(a);
         let (mut q, mut t) = nalgebra::linalg::Hessenberg::new(work).unpack();
         let itmax = params.iterations_per_row.max(1).saturating_mul(n.max(10));
         if let Err(row) = francis_qr(&mut t, &mut q, itmax, true) {
@@ -145,14 +137,7 @@ impl RealSchur {
         if n <= 1 {
             return Ok(a.iter().map(|&x| Complex::new(x, 0.0)).collect());
         }
-        let amax = a.amax();
-        let mut scale = 1.0;
-        let mut work = a.clone();
-        if amax > 0.0 && !(2f64.powi(-500)..=2f64.powi(500)).contains(&amax) {
-            let e = amax.log2().floor() as i32;
-            scale = 2f64.powi(e);
-            work *= 2f64.powi(-e);
-        }
+        let (work, scale) = scaled_into_safe_range(a);
         let mut t = nalgebra::linalg::Hessenberg::new(work).unpack_h();
         let mut none = DMatrix::zeros(0, 0);
         let itmax = SchurParams::default()
@@ -492,6 +477,20 @@ fn francis_qr(
             return Ok(());
         }
     }
+}
+
+/// A copy of `a` scaled by an exact power of two so that its largest entry lies in
+/// [2⁻⁵⁰⁰, 2⁵⁰⁰] (the QR iteration's products then neither overflow nor underflow), and
+/// the factor that undoes it.
+fn scaled_into_safe_range(a: &DMatrix<f64>) -> (DMatrix<f64>, f64) {
+    let amax = a.amax();
+    let mut work = a.clone();
+    if amax > 0.0 && !(2f64.powi(-500)..=2f64.powi(500)).contains(&amax) {
+        let e = amax.log2().floor() as i32;
+        work *= 2f64.powi(-e);
+        return (work, 2f64.powi(e));
+    }
+    (work, 1.0)
 }
 
 /// Applies `I − τ·u·uᵀ`, `u = (1, v2, v3)`, from the left to rows `k..k+3` over the

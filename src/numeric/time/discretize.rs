@@ -386,17 +386,7 @@ mod tests {
     use super::*;
     use crate::numeric::freq::response::frequency_response;
 
-    fn model(a: &[f64], b: &[f64], c: &[f64], d: f64) -> StateSpace {
-        let n = b.len();
-        StateSpace::new(
-            DMatrix::from_row_slice(n, n, a),
-            DMatrix::from_column_slice(n, 1, b),
-            DMatrix::from_row_slice(1, n, c),
-            DMatrix::from_element(1, 1, d),
-            0.0,
-        )
-        .unwrap()
-    }
+    use crate::numeric::testing::siso as model;
 
     #[test]
     fn zoh_of_first_order_closed_form() {

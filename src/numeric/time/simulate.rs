@@ -633,14 +633,7 @@ mod tests {
     #[test]
     fn linear_hold_is_exact_for_a_ramp() {
         // x' = u, u = t ⇒ x = t²/2 (closed form); the zoh gives the left Riemann sum.
-        let s = StateSpace::new(
-            DMatrix::zeros(1, 1),
-            DMatrix::from_element(1, 1, 1.0),
-            DMatrix::from_element(1, 1, 1.0),
-            DMatrix::zeros(1, 1),
-            0.0,
-        )
-        .unwrap();
+        let s = crate::numeric::testing::siso(&[0.0], &[1.0], &[1.0], 0.0);
         let t: Vec<f64> = (0..11).map(|k| k as f64 * 0.1).collect();
         let u = DMatrix::from_column_slice(11, 1, &t);
         let r = simulate(&s, &t, &u, None, SimulationOptions::default()).unwrap();
