@@ -3,11 +3,10 @@
 //! escape, write escape) and the flags that widen it on purpose.
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+use std::process::Output;
 
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_statebook"))
-}
+mod common;
+use common::cli::bin;
 
 /// A fresh tree: `<tmp>/<name>/{project/, outside/}` with a model file outside.
 fn tree(name: &str) -> (PathBuf, PathBuf) {
@@ -221,22 +220,11 @@ fn no_way_round_the_engine() {
 
 #[test]
 fn repl_sandbox_is_the_working_directory() {
-    use std::io::Write;
     let (p, o) = tree("repl");
-    let mut child = bin()
-        .current_dir(&p)
-        .stdin(std::process::Stdio::piped())
-        .stdout(std::process::Stdio::piped())
-        .stderr(std::process::Stdio::piped())
-        .spawn()
-        .expect("spawn");
-    child
-        .stdin
-        .take()
-        .expect("stdin")
-        .write_all(b"save_model(state_space(-1, 1, 1, 0), \"here.json\")\nload_model(\"../outside/secret.json\")\n")
-        .expect("write");
-    let out = child.wait_with_output().expect("wait");
+    let out = common::cli::repl_piped(
+        &p,
+        "save_model(state_space(-1, 1, 1, 0), \"here.json\")\nload_model(\"../outside/secret.json\")\n",
+    );
     let e = String::from_utf8_lossy(&out.stderr);
     assert_eq!(out.status.code(), Some(1), "{e}");
     assert!(p.join("here.json").exists(), "{e}");
