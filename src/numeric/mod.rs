@@ -12,6 +12,7 @@ pub mod linalg;
 pub mod lti;
 pub mod order;
 pub mod sampling;
+pub mod stats;
 #[cfg(test)]
 pub mod testing;
 pub mod time;

@@ -46,9 +46,28 @@ pub fn all() -> Vec<Doc> {
     v
 }
 
-/// The documentation of one name, if any.
+/// The documentation of one name, if any: the page of that name, or else the page whose
+/// usage or details show it as a property or method (`sys.dt` is on the page of `A`,
+/// `table.logs` on the page of `Table`).
 pub fn find(name: &str) -> Option<Doc> {
-    all().into_iter().find(|d| d.name == name)
+    let docs = all();
+    let name = if name == "**" { "^" } else { name };
+    if let Some(d) = docs.iter().find(|d| d.name == name) {
+        return Some(*d);
+    }
+    docs.into_iter()
+        .find(|d| mentions_member(d.usage, name) || mentions_member(d.details, name))
+}
+
+/// Whether `text` shows `.name` as a whole word (a property or a method).
+fn mentions_member(text: &str, name: &str) -> bool {
+    let pat = format!(".{name}");
+    let word = |c: char| c.is_alphanumeric() || c == '_';
+    text.match_indices(&pat).any(|(i, _)| {
+        let before = text[..i].chars().next_back();
+        let after = text[i + pat.len()..].chars().next();
+        before.is_some_and(word) && !after.is_some_and(word)
+    })
 }
 
 /// The full help page of one built-in.

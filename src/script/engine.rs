@@ -17,6 +17,7 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     let limits = &state.limits;
     e.set_fast_operators(false);
     e.disable_symbol("eval");
+    super::syntax::install(&mut e);
     e.set_max_operations(limits.operations);
     e.set_max_call_levels(limits.call_depth);
     e.set_max_string_size(limits.string_size);
@@ -56,6 +57,7 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::design::register(&mut e);
     builtins::model_plots::register(&mut e);
     builtins::sweep::register(&mut e);
+    builtins::stats::register(&mut e);
     register_display(&mut e, state);
     super::nesting::register(&mut e);
     super::stdlib::load(&mut e);

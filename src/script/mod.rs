@@ -11,4 +11,5 @@ pub mod show;
 pub mod state;
 pub mod stdlib;
 pub mod sweep;
+pub mod syntax;
 pub mod types;

@@ -58,70 +58,16 @@ pub(crate) struct Block {
 /// Real Schur form A = Q T Qᵀ with every 2×2 diagonal block of T holding a complex pair
 /// (blocks with real eigenvalues are split by a rotation) and T zero below its blocks.
 pub(crate) fn real_schur(a: &DMatrix<f64>) -> NumResult<(DMatrix<f64>, DMatrix<f64>, Vec<Block>)> {
-    let n = a.nrows();
-    let cap = 100 * n + 1000;
-    let schur = nalgebra::linalg::Schur::try_new(a.clone(), f64::EPSILON, cap).ok_or(
-        NumError::NoConvergence {
-            what: "real Schur decomposition".into(),
-            iterations: cap,
-        },
-    )?;
-    let (mut q, mut t) = schur.unpack();
-    for j in 0..n {
-        for i in (j + 2)..n {
-            t[(i, j)] = 0.0;
-        }
-    }
-    let mut blocks = Vec::with_capacity(n);
-    let mut i = 0;
-    while i < n {
-        if i + 1 < n && t[(i + 1, i)] != 0.0 {
-            let (_, [a11, a12, a21, a22]) = scaled_block(&t, i);
-            let p = 0.5 * a11 - 0.5 * a22;
-            let discr = p * p + a12 * a21;
-            if discr >= 0.0 {
-                // Real pair: rotate the eigenvector of λ onto e₁ (upper-triangularises).
-                let lambda = 0.5 * (a11 + a22) + p.signum() * discr.sqrt();
-                let (v1, v2) = if (lambda - a22).hypot(a21) >= a12.hypot(lambda - a11) {
-                    (lambda - a22, a21)
-                } else {
-                    (a12, lambda - a11)
-                };
-                let r = v1.hypot(v2);
-                let (c, s) = if r == 0.0 {
-                    (1.0, 0.0)
-                } else {
-                    (v1 / r, v2 / r)
-                };
-                for k in 0..n {
-                    let (x, y) = (t[(i, k)], t[(i + 1, k)]);
-                    t[(i, k)] = c * x + s * y;
-                    t[(i + 1, k)] = -s * x + c * y;
-                }
-                for k in 0..n {
-                    let (x, y) = (t[(k, i)], t[(k, i + 1)]);
-                    t[(k, i)] = c * x + s * y;
-                    t[(k, i + 1)] = -s * x + c * y;
-                    let (x, y) = (q[(k, i)], q[(k, i + 1)]);
-                    q[(k, i)] = c * x + s * y;
-                    q[(k, i + 1)] = -s * x + c * y;
-                }
-                t[(i + 1, i)] = 0.0;
-                blocks.push(Block { start: i, size: 1 });
-                i += 1;
-            } else {
-                if i + 2 < n {
-                    t[(i + 2, i + 1)] = 0.0;
-                }
-                blocks.push(Block { start: i, size: 2 });
-                i += 2;
-            }
-        } else {
-            blocks.push(Block { start: i, size: 1 });
-            i += 1;
-        }
-    }
-    Ok((q, t, blocks))
+    // One Schur path for the whole crate: the project's own Francis iteration with
+    // standardised blocks (nalgebra's iteration stalls on cyclic matrices such as the
+    // companion matrix of s⁸ − 1).
+    let s = super::schur::RealSchur::new(a)?;
+    let blocks = s
+        .blocks()
+        .into_iter()
+        .map(|(start, size)| Block { start, size })
+        .collect();
+    Ok((s.q, s.t, blocks))
 }
 
 /// Eigenvalue(s) of a diagonal block: λ (1×1) or θ + iμ with μ > 0 (2×2).
@@ -626,6 +572,33 @@ pub fn inverse(a: &DMatrix<f64>) -> NumResult<DMatrix<f64>> {
         )
     })?;
     Ok(inv)
+}
+
+/// Integer power Aᵏ of a square matrix: binary powering (repeated squaring, about
+/// 2·log₂|k| products; Golub & Van Loan 2013, "Matrix Computations", 4th ed., § 9.2),
+/// with A⁰ = I and, for k < 0, the power of [`inverse`]`(A)` (so a numerically singular A
+/// is refused there). Fails with [`NumError::NoSolution`] when the power overflows.
+pub fn power(a: &DMatrix<f64>, k: i64) -> NumResult<DMatrix<f64>> {
+    let n = check::finite_square("A", a)?;
+    let mut base = if k < 0 { inverse(a)? } else { a.clone() };
+    let mut e = k.unsigned_abs();
+    let mut out = DMatrix::identity(n, n);
+    while e > 0 {
+        if e & 1 == 1 {
+            out = &out * &base;
+        }
+        e >>= 1;
+        if e > 0 {
+            base = &base * &base;
+        }
+        if !out.iter().chain(base.iter()).all(|x| x.is_finite()) {
+            return Err(NumError::no_solution(
+                "matrix power",
+                "the power overflows the floating-point range",
+            ));
+        }
+    }
+    Ok(out)
 }
 
 /// Solves A X = B for X, with A square (n×n) and B n×k.

@@ -82,6 +82,8 @@ pub fn register(engine: &mut Engine) {
     engine.register_fn("sqrt", |z: Complex| Complex(z.0.sqrt()));
     engine.register_fn("exp", |z: Complex| Complex(z.0.exp()));
     engine.register_fn("ln", |z: Complex| Complex(z.0.ln()));
+    engine.register_fn("log", |z: Complex| Complex(z.0.ln()));
+    engine.register_fn("log10", |z: Complex| Complex(z.0.log10()));
     macro_rules! binary {
         ($op:literal, $f:expr) => {{
             let f: fn(C<f64>, C<f64>) -> C<f64> = $f;

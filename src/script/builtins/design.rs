@@ -54,7 +54,7 @@ pub const DOCS: &[Doc] = &[
                   which keeps the closed-loop eigenvectors well conditioned. Warns when the \
                   eigenvector condition number exceeds 1e5: the placed poles are then \
                   sensitive to small model errors. Apply K with with_state_feedback.",
-        example: "let K = assign_poles(plant, [-2, complex(-1, 1), complex(-1, -1)]);" },
+        example: "let K = assign_poles(plant, [complex(-1, 1), complex(-1, -1)]);" },
     Doc { name: "lq_regulator", family: "design",
         usage: "lq_regulator(sys, Q, R) → #{ gain, riccati, closed_loop_poles }",
         summary: "the linear-quadratic state-feedback regulator u = −K x",

@@ -18,7 +18,7 @@ pub const DOCS: &[Doc] = &[
         details: "path: relative to the analysis file, inside its folder. Cells are separated \
                   by commas; a first row that is not all numbers is taken as the header. Every \
                   other row must hold the same number of numeric cells.",
-        example: "let data = read_csv(\"measured.csv\");",
+        example: "write_csv(\"measured.csv\", matrix([[0, 1.5], [0.1, 1.7]]), [\"t\", \"y\"]);\nlet data = read_csv(\"measured.csv\");",
     },
     Doc {
         name: "write_csv",

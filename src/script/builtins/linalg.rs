@@ -114,6 +114,14 @@ pub const DOCS: &[Doc] = &[
         example: "characteristic_polynomial(matrix([[0, 1], [-2, -3]]))   // [1, 3, 2]",
     },
     Doc {
+        name: "polynomial_value",
+        family: "linear algebra",
+        usage: "polynomial_value(coefficients, s) → Complex",
+        summary: "the value of a polynomial at a real or complex point (Horner's rule)",
+        details: "coefficients: highest power first; s: a number or a Complex.",
+        example: "polynomial_value([1, 3, 2], complex(0, 1))   // (j)² + 3j + 2 = 1+3j",
+    },
+    Doc {
         name: "polynomial_roots",
         family: "linear algebra",
         usage: "polynomial_roots(coefficients) → [Complex]",
@@ -193,6 +201,9 @@ pub fn register(engine: &mut Engine) {
         dense::inverse(&m(&a, "inverse")?)
             .map(matrix_value)
             .map_err(num("inverse"))
+    });
+    engine.register_fn("**", |a: Matrix, k: INT| -> Rr<Dynamic> {
+        dense::power(&a.0, k).map(matrix_value).map_err(num("^"))
     });
     engine.register_fn("determinant", |a: Dynamic| -> Rr<FLOAT> {
         dense::determinant(&m(&a, "determinant")?).map_err(num("determinant"))

@@ -12,6 +12,7 @@ pub mod matrix;
 pub mod model_plots;
 pub mod output;
 pub mod plot;
+pub mod stats;
 pub mod sweep;
 pub mod time;
 
@@ -35,6 +36,7 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     design::DOCS,
     model_plots::DOCS,
     sweep::DOCS,
+    stats::DOCS,
 ];
 
 /// Display of value types defined by the domain bindings (models, responses, figures).

@@ -93,11 +93,16 @@ pub fn register(engine: &mut Engine, st: &Arc<SessionState>) {
             Ok(())
         },
     );
-    engine.register_fn("to_json", |v: Dynamic| -> Rr<String> {
+    fn to_json(v: Dynamic) -> Rr<String> {
         Ok(json::encode_checked(&v, "to_json")
             .map_err(fail)?
             .to_string())
-    });
+    }
+    engine.register_fn("to_json", to_json);
+    // The engine's own `to_json` for maps (and any later one for arrays) would otherwise
+    // be picked for these types and write nested values as Rust type names.
+    engine.register_fn("to_json", |m: rhai::Map| to_json(Dynamic::from_map(m)));
+    engine.register_fn("to_json", |a: rhai::Array| to_json(Dynamic::from_array(a)));
     engine.register_fn("require", |c: Dynamic, m: Dynamic| -> Rr<()> {
         let Ok(ok) = c.as_bool() else {
             return Err(fail(format!(

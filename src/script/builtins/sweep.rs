@@ -40,7 +40,7 @@ pub const DOCS: &[Doc] = &[
                   With `statebook run FILE --shard K/N` each sweep runs only the cases whose \
                   index i has i mod N = K − 1; see `statebook merge`.",
         example: "fn plant_case(p) {\n  let sys = state_space([[0, 1], [-p.k, -p.c]], [[0], [1]], \
-                  [[1, 0]], 0);\n  #{ worst_damping: modes(sys).map(|m| m.damping).min() }\n}\n\
+                  [[1, 0]], 0);\n  #{ worst_damping: min(modes(sys).map(|m| m.damping)) }\n}\n\
                   let t = sweep(#{ k: [1, 4, 9], c: [0.2, 0.4] }, plant_case);\n\
                   t.column(\"worst_damping\")",
     },
@@ -72,7 +72,7 @@ pub const DOCS: &[Doc] = &[
                   failed case has () in its result columns — use table.successes().column(name) \
                   for plots. A table from a sharded run holds only that shard's cases; \
                   table.cases gives their indices in the full sweep.",
-        example: "plot(t.column(\"k\"), t.column(\"worst_damping\"))",
+        example: "let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });\nplot(t.column(\"k\"), t.column(\"worst_damping\"))",
     },
     Doc {
         name: "failures",
@@ -80,7 +80,7 @@ pub const DOCS: &[Doc] = &[
         usage: "table.failures() → Table\ntable.successes() → Table\ntable.filter(f) → Table",
         summary: "the failed cases, the successful ones, or the rows where f(row) is true",
         details: "f: a function of a row map returning true or false.",
-        example: "t.filter(|r| r.k > 2).len()",
+        example: "let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });\nt.filter(|r| r.k > 2).len()",
     },
     Doc {
         name: "row_with_smallest",
@@ -88,7 +88,7 @@ pub const DOCS: &[Doc] = &[
         usage: "table.row_with_smallest(name) → map\ntable.row_with_largest(name) → map",
         summary: "the row whose numeric column name is smallest (or largest)",
         details: "Failed cases and NaN values are skipped; ties go to the earliest row.",
-        example: "record(\"worst_case\", t.row_with_smallest(\"worst_damping\"));",
+        example: "let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });\nrecord(\"worst_case\", t.row_with_smallest(\"worst_damping\"));",
     },
     Doc {
         name: "distinct_values",
@@ -96,7 +96,7 @@ pub const DOCS: &[Doc] = &[
         usage: "table.distinct_values(name) → array",
         summary: "the distinct values of a column, in order of first appearance",
         details: "For a grid sweep these are the grid's levels of that parameter.",
-        example: "for k in t.distinct_values(\"k\") { print(k); }",
+        example: "let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });\nfor k in t.distinct_values(\"k\") { print(k); }",
     },
     Doc {
         name: "save_csv",
@@ -108,7 +108,7 @@ pub const DOCS: &[Doc] = &[
                   failed. record(name, table) and to_json(table) give an object of columns \
                   ({\"k\": [..], \"worst_damping\": [..]}, plus \"case_error\" when a case \
                   failed).",
-        example: "t.save_csv(\"tolerance-study.csv\");",
+        example: "let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });\nt.save_csv(\"tolerance-study.csv\");",
     },
 ];
 

@@ -25,7 +25,7 @@ pub const DOCS: &[Doc] = &[
         example: "to_transfer_function(state_space([[-2]], [[1]], [[3]], 0))   // 3/(s + 2)" },
     Doc { name: "channel", family: "models", usage: "channel(sys, output, input) → System",
         summary: "the single-input single-output model from one input to one output",
-        details: "0-based indices.", example: "channel(plant, 0, 1)" },
+        details: "0-based indices.", example: "let m = state_space([[-1]], [[1, 2]], [[1]], [[0, 0]]);\nchannel(m, 0, 1)" },
     Doc { name: "name_signals", family: "models",
         usage: "name_signals(sys, #{ inputs, outputs, states }) → System",
         summary: "a copy of the model with names for its signals (used in display and plots)",

@@ -92,11 +92,18 @@ pub const DOCS: &[Doc] = &[
         details: "Panels share the time axis; output names come from the model's signal names. \
                   Legends: a response's input name, else \"response k\". Discrete responses are \
                   drawn as staircases. options as plot.",
-        example: "plot_response([step_response(plant), step_response(pd)])" },
+        example: "let pd = discretize(plant, 0.1);\nplot_response([step_response(plant), step_response(pd)])" },
     Doc { name: "plot_step", family: "plots",
         usage: "plot_step(sys) → Figure\nplot_step([sys, …])\nplot_step(sys, options)",
         summary: "step responses of one or more models, one panel per output",
         details: "A common automatic horizon (the longest of the models'). A single-input model \
                   alone also shows its final value (dc_gain) as a dashed line.",
         example: "plot_step([plant, discretize(plant, 0.2)])" },
+    Doc { name: "Response", family: "time domain",
+        usage: "resp.t → array (s)\nresp.y → Matrix (one row per sample, one column per output)\n\
+                resp.x → Matrix (states)\nresp.u → Matrix (inputs)",
+        summary: "a time response: samples of time, outputs, states and inputs",
+        details: "Returned by step_response, impulse_response, free_response, simulate and \
+                  integrate_ode. Row k of y, x and u belongs to time t[k].",
+        example: "let r = step_response(plant, 5);\nr.y.get(r.y.rows - 1, 0)" },
 ];
