@@ -43,8 +43,10 @@ fn describe(info: &std::panic::PanicHookInfo<'_>) -> String {
         .or_else(|| payload.downcast_ref::<&str>().map(|s| s.to_string()))
         .unwrap_or_else(|| "unknown".into());
     match info.location() {
-        Some(l) => format!("{what}, at {}:{}", l.file(), l.line()),
-        None => what,
+        // statebook's own files are named relative to the crate root; a panic inside a
+        // dependency would name a path on the build machine, which helps no user.
+        Some(l) if l.file().starts_with("src/") => format!("{what}, at {}:{}", l.file(), l.line()),
+        _ => what,
     }
 }
 

@@ -263,6 +263,7 @@ pub fn jordan_realization(sys: &StateSpace) -> NumResult<Modal> {
         if ev
             .iter()
             .any(|z| z.im.abs() > NEARLY_DEFECTIVE * (1.0 + z.norm()))
+            && !one_defective_eigenvalue(&ev, blk.norm())
         {
             return Err(NumError::invalid(
                 "jordan_realization",
@@ -299,6 +300,25 @@ pub fn jordan_realization(sys: &StateSpace) -> NumResult<Modal> {
             .into(),
     );
     Ok(out)
+}
+
+/// Whether the k computed eigenvalues `ev` of a cluster are one defective real eigenvalue
+/// split by rounding. A k×k Jordan block perturbed by δ has eigenvalues on a circle of
+/// radius about δ^(1/k) around λ (Lidskii 1966; Moro, Burke & Overton 1997, "On the
+/// Lidskii–Vishik–Lyusternik perturbation theory for eigenvalues of matrices with
+/// arbitrary Jordan structure", SIAM J. Matrix Anal. Appl. 18(4)); with the backward
+/// error δ = ε‖T_k‖ of the Schur form, a triple eigenvalue splits by ~ε^(1/3)‖T_k‖ ≈ 6e-6
+/// relative, far beyond a fixed tolerance. The cluster is accepted when its mean is real
+/// and every eigenvalue lies within 100·ε^(1/k)·scale of it.
+fn one_defective_eigenvalue(ev: &[Complex<f64>], norm: f64) -> bool {
+    let k = ev.len();
+    if k < 2 {
+        return false;
+    }
+    let mean = ev.iter().sum::<Complex<f64>>() / k as f64;
+    let scale = norm.max(mean.norm()).max(f64::MIN_POSITIVE);
+    let radius = 100.0 * f64::EPSILON.powf(1.0 / k as f64) * scale;
+    mean.im.abs() <= 100.0 * f64::EPSILON * scale && ev.iter().all(|z| (z - mean).norm() <= radius)
 }
 
 /// Jordan chains of a k×k block with the single eigenvalue `lam`: returns the chain
@@ -485,6 +505,31 @@ mod tests {
             "{ja}"
         );
         same_markov(&sys, &jr.system);
+    }
+
+    #[test]
+    fn jordan_of_a_rotated_triple_block() {
+        // A 3×3 Jordan block at −2 behind an orthogonal-ish similarity: the Schur form's
+        // eigenvalues split by ~ε^(1/3) into a complex pair and a real one, which used to be
+        // refused as "repeated complex pairs".
+        let j = DMatrix::from_row_slice(3, 3, &[-2.0, 1.0, 0.0, 0.0, -2.0, 1.0, 0.0, 0.0, -2.0]);
+        let mut complex_splits = 0;
+        for seed in 0..40 {
+            let mut rng = Rng::new(seed);
+            let q = rng.matrix(3, 3).qr().q();
+            let a = q.transpose() * &j * &q;
+            let ev = crate::numeric::linalg::eigen::eigenvalues(&a).unwrap();
+            complex_splits += ev.iter().any(|z| z.im.abs() > NEARLY_DEFECTIVE * 3.0) as usize;
+            let sys = model(a, &mut rng);
+            let jr = jordan_realization(&sys).unwrap_or_else(|e| panic!("seed {seed}: {e}"));
+            assert_eq!(jr.blocks, vec![3], "seed {seed}: {}", jr.system.a);
+            for i in 0..3 {
+                assert!((jr.system.a[(i, i)] + 2.0).abs() < 1e-4, "{}", jr.system.a);
+            }
+            same_markov(&sys, &jr.system);
+        }
+        // The sweep must contain the case that used to be refused.
+        assert!(complex_splits > 0, "no seed split into a complex pair");
     }
 
     #[test]

@@ -613,6 +613,251 @@ mod tests {
         }
     }
 
+    /// A model with planted transmission zeros and exactly representable data: G(s) =
+    /// N(s)/d(s) with N(s) = z(s)·N₀(s), z(s) the planted zero polynomial, N₀ a random integer
+    /// p×m polynomial matrix (p > m, so N₀(λ) keeps full column rank for every λ
+    /// generically), d(s) = ∏(s − rᵢ) with distinct integer roots. Realized in the block
+    /// controller form (n = q·m states; common practice, no source: C(sI − A)⁻¹B =
+    /// Σ Nₖ sᵏ / d(s)), minimal for generic N₀, so its invariant zeros are exactly the roots
+    /// of z(s). The structure is then hidden by a unimodular integer similarity and output
+    /// mixing (exact in floating point), and for `wide` the dual model is returned.
+    fn planted(rng: &mut Rng, wide: bool, near_drop: bool) -> (Model, Vec<Complex<f64>>) {
+        let int =
+            |rng: &mut Rng, lo: i64, hi: i64| lo + (rng.next_u64() % (hi - lo + 1) as u64) as i64;
+        let (p, m) = [(2, 1), (3, 1), (3, 2), (4, 2), (4, 3), (5, 2)][int(rng, 0, 5) as usize];
+        let q = int(rng, 2, 4) as usize;
+        // Planted zero polynomial: one real zero, two real zeros or a complex pair.
+        let (zpoly, want): (Vec<f64>, Vec<Complex<f64>>) = match int(rng, 0, 2) {
+            0 => {
+                let z0 = int(rng, -6, 3) as f64;
+                (vec![-z0, 1.0], vec![Complex::new(z0, 0.0)])
+            }
+            1 => {
+                let (z0, z1) = (int(rng, -6, 3) as f64, int(rng, -6, 3) as f64 + 0.5);
+                (vec![z0 * z1, -(z0 + z1), 1.0], real(&[z0, z1]))
+            }
+            _ => {
+                let (re, im) = (int(rng, -4, 2) as f64, int(rng, 1, 3) as f64);
+                (
+                    vec![re * re + im * im, -2.0 * re, 1.0],
+                    vec![Complex::new(re, -im), Complex::new(re, im)],
+                )
+            }
+        };
+        let zdeg = zpoly.len() - 1;
+        let q = q.max(zdeg + 1);
+        // Proper or strictly proper: N of degree q (feedthrough) or below q.
+        let ndeg = if int(rng, 0, 1) == 0 { q - 1 } else { q };
+        let n0deg = ndeg - zdeg;
+        // N₀ = [U; R(s)] with U a constant unimodular integer matrix (unit upper
+        // triangular): N₀(λ) has full column rank for every λ, so the zeros are exactly
+        // the roots of z(s), and N(rᵢ) has full rank at every pole, so the realization is
+        // minimal ([N(λ); d(λ)I] has full column rank for every λ).
+        // With `near_drop`, in half the cases U's last pivot is a small power of two: N₀(λ)
+        // then stays of full rank but close to a rank drop for every λ.
+        let pivot = if !near_drop || int(rng, 0, 1) == 0 {
+            1.0
+        } else {
+            (2.0f64).powi(-int(rng, 4, 20) as i32)
+        };
+        let n0: Vec<DMatrix<f64>> = (0..=n0deg)
+            .map(|k| {
+                DMatrix::from_fn(p, m, |i, j| {
+                    if i >= m {
+                        int(rng, -3, 3) as f64
+                    } else if k > 0 {
+                        0.0
+                    } else if i == j {
+                        if i == m - 1 {
+                            pivot
+                        } else {
+                            1.0
+                        }
+                    } else if j > i {
+                        int(rng, -2, 2) as f64
+                    } else {
+                        0.0
+                    }
+                })
+            })
+            .collect();
+        let mut num = vec![DMatrix::zeros(p, m); ndeg + 1];
+        for (i, zi) in zpoly.iter().enumerate() {
+            for (j, nj) in n0.iter().enumerate() {
+                num[i + j] += nj * *zi;
+            }
+        }
+        // Distinct integer poles, none at a planted zero.
+        let mut roots: Vec<f64> = Vec::new();
+        while roots.len() < q {
+            let r = int(rng, -9, 2) as f64;
+            if !roots.contains(&r) && !want.iter().any(|w| (w.re - r).abs() < 0.25 && w.im == 0.0) {
+                roots.push(r);
+            }
+        }
+        let mut den = vec![1.0];
+        for r in &roots {
+            let mut next = vec![0.0; den.len() + 1];
+            for (k, dk) in den.iter().enumerate() {
+                next[k + 1] += dk;
+                next[k] -= r * dk;
+            }
+            den = next;
+        }
+        // Feedthrough and the strictly proper remainder N(s) − D·d(s).
+        let d = if ndeg == q {
+            num[q].clone()
+        } else {
+            DMatrix::zeros(p, m)
+        };
+        let n = q * m;
+        let mut a = DMatrix::zeros(n, n);
+        for k in 0..q - 1 {
+            for i in 0..m {
+                a[(k * m + i, (k + 1) * m + i)] = 1.0;
+            }
+        }
+        for k in 0..q {
+            for i in 0..m {
+                a[((q - 1) * m + i, k * m + i)] = -den[k];
+            }
+        }
+        let mut b = DMatrix::zeros(n, m);
+        for i in 0..m {
+            b[((q - 1) * m + i, i)] = 1.0;
+        }
+        let mut c = DMatrix::zeros(p, n);
+        for k in 0..q {
+            let ck = &num[k] - &d * den[k];
+            c.view_mut((0, k * m), (p, m)).copy_from(&ck);
+        }
+        // Unimodular integer similarity x = T z (T⁻¹ exact) and output mixing.
+        let (mut t, mut ti) = (
+            DMatrix::<f64>::identity(n, n),
+            DMatrix::<f64>::identity(n, n),
+        );
+        for _ in 0..n {
+            let (i, j) = (
+                int(rng, 0, n as i64 - 1) as usize,
+                int(rng, 0, n as i64 - 1) as usize,
+            );
+            if i == j {
+                continue;
+            }
+            let f = [-1.0, 1.0, 2.0][int(rng, 0, 2) as usize];
+            let mut e = DMatrix::identity(n, n);
+            e[(i, j)] = f;
+            let mut einv = DMatrix::identity(n, n);
+            einv[(i, j)] = -f;
+            t = &t * &e;
+            ti = &einv * &ti;
+        }
+        let mut mix = DMatrix::<f64>::identity(p, p);
+        for i in 0..p {
+            let j = (i + 1 + int(rng, 0, p as i64 - 2) as usize) % p;
+            let mut e = DMatrix::identity(p, p);
+            e[(i, j)] = [-1.0, 1.0][int(rng, 0, 1) as usize];
+            mix = &e * &mix;
+        }
+        let (a, b, c, d) = (&ti * &a * &t, &ti * &b, &mix * &c * &t, &mix * &d);
+        let model = if wide {
+            Model {
+                a: a.transpose(),
+                b: c.transpose(),
+                c: b.transpose(),
+                d: d.transpose(),
+            }
+        } else {
+            Model { a, b, c, d }
+        };
+        (model, want)
+    }
+
+    #[test]
+    fn planted_zeros_of_non_square_models_are_found_and_none_invented() {
+        planted_sweep(false);
+    }
+
+    /// Known open (issue 13, item 5): with N₀ close to a rank drop (pivot 2⁻⁴…2⁻²⁰) the
+    /// reduction loses every zero of 80 of these 1200 models; a larger rank tolerance only
+    /// moves the boundary (14 at 1000·(n + max(m, p))·ε). Run with `--ignored`.
+    #[test]
+    #[ignore = "known open: zeros lost near a rank drop elsewhere"]
+    fn planted_zeros_near_a_rank_drop_elsewhere() {
+        planted_sweep(true);
+    }
+
+    fn planted_sweep(near_drop: bool) {
+        let (mut missed, mut invented, mut failed) = (0, 0, 0);
+        let mut rng = Rng::new(2026);
+        let total = 1200;
+        for k in 0..total {
+            let (s, want) = planted(&mut rng, k % 2 == 1, near_drop);
+            match transmission_zeros(&s.a, &s.b, &s.c, &s.d) {
+                Err(e) => {
+                    failed += 1;
+                    eprintln!("case {k}: {e}");
+                }
+                Ok(got) => {
+                    let found = |w: &Complex<f64>| {
+                        got.iter()
+                            .any(|g| (g - w).norm() <= 1e-6 * (1.0 + w.norm()))
+                    };
+                    let planted_here = |g: &Complex<f64>| {
+                        want.iter()
+                            .any(|w| (g - w).norm() <= 1e-6 * (1.0 + w.norm()))
+                    };
+                    let miss = want.iter().filter(|w| !found(w)).count();
+                    let extra = got.iter().filter(|g| !planted_here(g)).count();
+                    if miss + extra > 0 {
+                        eprintln!("case {k}: want {want:?}, got {got:?}");
+                    }
+                    missed += miss;
+                    invented += extra;
+                }
+            }
+        }
+        assert_eq!((missed, invented, failed), (0, 0, 0), "of {total} models");
+    }
+
+    #[test]
+    fn square_integer_models_never_fail_and_match_the_closed_form() {
+        // Small-integer data puts rounding-level entries next to O(1) ones inside the
+        // reduction; the one-sided Jacobi fallback of the SVD used to cycle on them ("did
+        // not converge": 4 of these 2000 models). With D invertible the zeros are the n
+        // eigenvalues of A − B D⁻¹ C (reference: nalgebra's LU solve and eigenvalues).
+        let mut checked = 0;
+        for seed in 0..2000u64 {
+            let mut rng = Rng::new(seed);
+            let n = 1 + (rng.next_u64() % 10) as usize;
+            let m = 1 + (rng.next_u64() % 3) as usize;
+            let mut int = |r: usize, c: usize| {
+                DMatrix::from_fn(r, c, |_, _| (rng.next_u64() % 7) as f64 - 3.0)
+            };
+            let (a, b, c, d) = (int(n, n), int(n, m), int(m, n), int(m, m));
+            let got = transmission_zeros(&a, &b, &c, &d)
+                .unwrap_or_else(|e| panic!("seed {seed} (n = {n}, m = {m}): {e}"));
+            if d.determinant().abs() < 0.5 {
+                continue; // singular integer D: no closed form here
+            }
+            checked += 1;
+            let dic = d.clone().lu().solve(&c).expect("D invertible");
+            let want = (&a - &b * dic).complex_eigenvalues();
+            assert_eq!(got.len(), n, "seed {seed}: {got:?}");
+            for w in want.iter() {
+                let best = got
+                    .iter()
+                    .fold(f64::INFINITY, |acc, g| acc.min((g - w).norm()));
+                // Repeated eigenvalues of integer matrices are conditioned like √ε.
+                assert!(
+                    best < 1e-6 * (1.0 + w.norm()),
+                    "seed {seed}: {w} not in {got:?}"
+                );
+            }
+        }
+        assert!(checked > 1000, "{checked}");
+    }
+
     #[test]
     fn random_non_square_models_have_no_zeros() {
         // A generic model with p ≠ m has no zeros (S(λ) keeps full rank for every λ;

@@ -85,6 +85,12 @@ pub(crate) fn row_jacobi(m: &DMatrix<f64>) -> NumResult<(Vec<f64>, DMatrix<f64>,
     let mut x = m.transpose() / scale;
     let mut u = DMatrix::identity(s, s);
     let tol = s as f64 * f64::EPSILON;
+    // A row below rounding level of the whole matrix is left alone: rotating it against a
+    // large row re-creates, at every sweep, a non-orthogonality of the size of the large
+    // row's rounding, which relative to the tiny row never drops below `tol` (the cycle
+    // that made integer models fail with "did not converge"). Leaving it costs a backward
+    // error below `negligible`, where its singular value counts as zero anyway.
+    let negligible = (s.max(w) as f64 * f64::EPSILON * x.norm()).powi(2);
     let mut converged = false;
     for _ in 0..MAX_SWEEPS {
         let mut rotated = false;
@@ -93,7 +99,11 @@ pub(crate) fn row_jacobi(m: &DMatrix<f64>) -> NumResult<(Vec<f64>, DMatrix<f64>,
                 let alpha = x.column(i).norm_squared();
                 let beta = x.column(j).norm_squared();
                 let gamma = x.column(i).dot(&x.column(j));
-                if gamma == 0.0 || gamma.abs() <= tol * (alpha.sqrt() * beta.sqrt()) {
+                if gamma == 0.0
+                    || alpha <= negligible
+                    || beta <= negligible
+                    || gamma.abs() <= tol * (alpha.sqrt() * beta.sqrt())
+                {
                     continue;
                 }
                 rotated = true;
