@@ -53,6 +53,9 @@ pub struct Provenance {
     pub date: String,
     /// Operating system and architecture.
     pub platform: String,
+    /// A random id of this run, written into both the report and the results file so
+    /// that `check` can tell whether the two come from the same render.
+    pub run: String,
 }
 
 /// A whole run of an analysis file.
