@@ -313,7 +313,8 @@ mod imp {
                 Err(e) => return Err(io::Error::from(e)),
             }
         };
-        let mut pending = Pending {
+        // Made before writing, so that a failed write removes the temporary.
+        let pending = Pending {
             dir,
             tmp,
             name,
@@ -322,8 +323,6 @@ mod imp {
         let mut file = file;
         file.write_all(bytes)?;
         file.sync_all()?;
-        drop(file);
-        pending.done = false;
         Ok(pending)
     }
 

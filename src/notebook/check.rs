@@ -11,6 +11,7 @@
 
 use super::output::NotebookRun;
 use serde_json::{Map, Value};
+use sha2::Digest;
 use std::path::{Path, PathBuf};
 
 /// Format tag of results files.
@@ -25,14 +26,9 @@ pub fn results_path(analysis: &Path) -> PathBuf {
     analysis.with_file_name(format!("{stem}.results.json"))
 }
 
-/// The results document of a run: its records, the run id it shares with its report, and
-/// the report's name (relative to the results file's folder when it lies there).
-pub fn results_json(
-    analysis_name: &str,
-    records: &[(String, Value)],
-    run: &str,
-    report: &str,
-) -> String {
+/// The results document of a run: its records and the name of the report written with it
+/// (relative to the results file's folder when it lies there).
+pub fn results_json(analysis_name: &str, records: &[(String, Value)], report: &str) -> String {
     let mut sorted: Vec<&(String, Value)> = records.iter().collect();
     sorted.sort_by(|a, b| a.0.cmp(&b.0));
     let mut rec = Map::new();
@@ -42,7 +38,6 @@ pub fn results_json(
     let mut doc = Map::new();
     doc.insert("format".into(), Value::String(RESULTS_FORMAT.into()));
     doc.insert("analysis".into(), Value::String(analysis_name.into()));
-    doc.insert("run".into(), Value::String(run.into()));
     doc.insert("report".into(), Value::String(report.into()));
     doc.insert("records".into(), Value::Object(rec));
     let mut s = serde_json::to_string_pretty(&Value::Object(doc)).unwrap_or_default();
@@ -55,9 +50,9 @@ pub const MAX_SAVED_BYTES: u64 = 256 * 1024 * 1024;
 
 /// Writes the report (HTML, or Markdown with figure files) and the results file as a
 /// pair: all of them go to exclusive temporary files first (see `safe_fs`), and only when
-/// every one is on disk are they renamed into place, the results file last. Both carry
-/// the run's id, so a reader (`check`) can tell a matching pair from one a crash between
-/// the renames left behind. Refuses an output that would replace the analysis file, the
+/// every one is on disk are they renamed into place, the results file last. The report
+/// carries the SHA-256 of its results file, so a reader (`check`) can tell a matching
+/// pair from one that a crash between the renames or another render left behind. Refuses an output that would replace the analysis file, the
 /// results file or any file the run read (`inputs`, real paths). Returns the paths
 /// written. The caller holds the analysis file's lock ([`crate::safe_fs::lock`]).
 pub fn write_outputs(
@@ -99,6 +94,24 @@ pub fn write_outputs(
             None => Ok(real),
         }
     };
+    let out_real = refuse_input(&out)?;
+    let report_name = match (
+        out_real.parent(),
+        results_real.parent(),
+        out_real.file_name(),
+    ) {
+        (Some(a), Some(b), Some(n)) if a == b => n.to_string_lossy().into_owned(),
+        _ => out_real.display().to_string(),
+    };
+    let name = analysis
+        .file_name()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let results_text = results_json(&name, records, &report_name);
+    let mut paired = run.clone();
+    paired.provenance.results_sha256 =
+        super::files::hex(&sha2::Sha256::digest(results_text.as_bytes()));
+    let run = &paired;
     let mut files: Vec<(PathBuf, String)> = Vec::new();
     if markdown {
         let out_stem = out
@@ -113,20 +126,6 @@ pub fn write_outputs(
     } else {
         files.push((out.clone(), crate::report::render_html(run)));
     }
-    let out_real = refuse_input(&out)?;
-    let report_name = match (
-        out_real.parent(),
-        results_real.parent(),
-        out_real.file_name(),
-    ) {
-        (Some(a), Some(b), Some(n)) if a == b => n.to_string_lossy().into_owned(),
-        _ => out_real.display().to_string(),
-    };
-    let name = analysis
-        .file_name()
-        .map(|s| s.to_string_lossy().into_owned())
-        .unwrap_or_default();
-    let results_text = results_json(&name, records, &run.provenance.run, &report_name);
     let mut pending = Vec::with_capacity(files.len() + 1);
     for (p, text) in &files {
         let real = refuse_input(p)?;
@@ -181,14 +180,13 @@ pub fn compare_with_saved(
             analysis.display()
         )
     })?;
-    let text = String::from_utf8(bytes)
-        .map_err(|_| format!("{} is not a valid results file: not UTF-8", path.display()))?;
+    let text = String::from_utf8_lossy(&bytes);
     let saved: Value = serde_json::from_str(&text)
         .map_err(|e| format!("{} is not a valid results file: {e}", path.display()))?;
     let Some(saved_rec) = saved.get("records").and_then(Value::as_object) else {
         return Err(format!("{} has no \"records\" object", path.display()));
     };
-    check_pair(&saved, &real, &path)?;
+    check_pair(&saved, &bytes, &real, &path)?;
     Ok(compare(
         saved_rec,
         records,
@@ -197,16 +195,16 @@ pub fn compare_with_saved(
     ))
 }
 
-/// Checks that the report named by a results file carries the same run id, so that a
-/// report is never taken with another run's results (a render interrupted between its
-/// renames, or two renders at once). Results files without a run id (older ones) pass.
-fn check_pair(saved: &Value, real: &Path, shown: &Path) -> Result<(), String> {
-    let (Some(run), Some(report)) = (
-        saved.get("run").and_then(Value::as_str),
-        saved.get("report").and_then(Value::as_str),
-    ) else {
+/// Checks that the report named by a results file carries the hash of exactly these
+/// results, so that a report is never taken with another run's results (a render
+/// interrupted between its renames, or two renders at once). Results files that name no
+/// report (older ones) pass.
+fn check_pair(saved: &Value, bytes: &[u8], real: &Path, shown: &Path) -> Result<(), String> {
+    let Some(report) = saved.get("report").and_then(Value::as_str) else {
         return Ok(());
     };
+    let run = super::files::hex(&sha2::Sha256::digest(bytes));
+    let run = run.as_str();
     let report_path = real
         .parent()
         .map(|d| d.join(report))
@@ -227,9 +225,9 @@ fn check_pair(saved: &Value, real: &Path, shown: &Path) -> Result<(), String> {
     match crate::report::run_of_report(&text) {
         Some(r) if r == run => Ok(()),
         found => Err(format!(
-            "the report {} and the results {} come from different runs (report run {}, \
-             results run {run}): a render was interrupted or two ran at once\nhint: run \
-             `statebook render` again to write a matching pair",
+            "the report {} and the results {} come from different runs (the report was \
+             written with results of SHA-256 {}, these have {run}): a render was interrupted \
+             or two ran at once\nhint: run `statebook render` again to write a matching pair",
             report_path.display(),
             shown.display(),
             found.unwrap_or("none")

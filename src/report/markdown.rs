@@ -138,8 +138,12 @@ fn push_provenance(text: &mut String, run: &NotebookRun) {
     let _ = writeln!(text, "- SHA-256: {}", code_span(&p.sha256));
     let _ = writeln!(text, "- Run on: {}", escape_inline(&p.date));
     let _ = writeln!(text, "- Platform: {}", escape_inline(&p.platform));
-    let _ = writeln!(text, "- Run id: {}\n", code_span(&p.run));
-    let _ = writeln!(text, "{}\n", super::run_marker(&p.run));
+    let _ = writeln!(
+        text,
+        "- Results SHA-256: {}\n",
+        code_span(&p.results_sha256)
+    );
+    let _ = writeln!(text, "{}\n", super::run_marker(&p.results_sha256));
     let _ = writeln!(text, "## {CAUTION_HEADING}\n");
     let paragraphs: Vec<&str> = CAUTION.to_vec();
     let _ = writeln!(text, "{}", paragraphs.join("\n\n"));

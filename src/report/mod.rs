@@ -43,17 +43,17 @@ const CAUTION: [&str; 3] = [
      the design reviewed and approved by a licensed professional engineer.",
 ];
 
-/// Starts the machine-readable run-id comment that both report formats carry (read back
-/// by `check` to pair a report with its results file).
-pub const RUN_MARKER: &str = "<!-- statebook-run: ";
+/// Starts the machine-readable comment that both report formats carry: the SHA-256 of the
+/// results file written with the report (read back by `check` to pair the two).
+pub const RUN_MARKER: &str = "<!-- statebook-results: ";
 
-/// The run-id comment for `run` (only its hexadecimal digits are kept).
+/// The pairing comment for `run` (only its hexadecimal digits are kept).
 fn run_marker(run: &str) -> String {
     let id: String = run.chars().filter(char::is_ascii_hexdigit).collect();
     format!("{RUN_MARKER}{id} -->")
 }
 
-/// The run id a report carries, if any.
+/// The results-file hash a report carries, if any.
 pub fn run_of_report(report: &str) -> Option<&str> {
     let at = report.rfind(RUN_MARKER)? + RUN_MARKER.len();
     let rest = &report[at..];
