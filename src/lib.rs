@@ -13,6 +13,7 @@ pub mod numeric;
 pub mod plot;
 pub mod repl;
 pub mod report;
+pub mod safe_fs;
 pub mod sandbox;
 pub mod script;
 
@@ -250,7 +251,12 @@ impl Session {
         self.state.records()
     }
 
-    /// The folder scripts may read and write.
+    /// The file-access policy of the session (also what its scripts have read).
+    pub fn sandbox(&self) -> &Sandbox {
+        &self.state.sandbox
+    }
+
+    /// The root folder of the session's sandbox.
     pub fn root(&self) -> &std::path::Path {
         self.state.sandbox.root()
     }

@@ -328,6 +328,10 @@ fn cmd_merge(parts: &[PathBuf], output: &Path) -> u8 {
 }
 
 fn cmd_render(file: &Path, output: Option<&Path>, markdown: bool, common: &Common) -> u8 {
+    // One render of a file at a time, so that the report and the results file of two
+    // concurrent renders cannot mix (a folder where no lock file can be made is read-only,
+    // and the writes below fail there anyway).
+    let _lock = statebook::safe_fs::lock(&statebook::safe_fs::resolve(file), true).ok();
     let (r, session) = match execute(file, common) {
         Ok(v) => v,
         Err(c) => return c,
@@ -337,7 +341,8 @@ fn cmd_render(file: &Path, output: Option<&Path>, markdown: bool, common: &Commo
         eprintln!("note: no report written; an existing report was left as it was");
         return 1;
     }
-    match check::write_outputs(file, output, markdown, &r, &session.records()) {
+    let inputs = session.sandbox().files_read();
+    match check::write_outputs(file, output, markdown, &r, &session.records(), &inputs) {
         Ok(written) => {
             for w in written {
                 println!("wrote {}", w.display());
@@ -364,6 +369,8 @@ fn cmd_check(file: &Path, tolerance: f64, common: &Common) -> u8 {
         eprintln!("{e}");
         return 1;
     }
+    // Shared with other checks, never while a render is renaming its pair into place.
+    let _lock = statebook::safe_fs::lock(&statebook::safe_fs::resolve(file), false).ok();
     match check::compare_with_saved(file, &session.records(), tolerance) {
         Ok(report) => {
             print!("{}", report.text);

@@ -12,7 +12,8 @@
 //! `push`es take a few seconds); and a native built-in's own work (a large eigenvalue
 //! problem in a loop) is not counted as operations. `--timeout` bounds both.
 
-use std::path::{Component, Path, PathBuf};
+use std::path::{Path, PathBuf};
+use std::sync::{Arc, Mutex};
 
 /// Where a script may read and write.
 #[derive(Debug, Clone)]
@@ -20,6 +21,9 @@ pub struct Sandbox {
     root: PathBuf,
     read: Vec<PathBuf>,
     write: Vec<PathBuf>,
+    /// Every real path a script was allowed to read (shared by clones, e.g. sweep
+    /// workers), so that a command can refuse to overwrite one of its own inputs.
+    reads: Arc<Mutex<Vec<PathBuf>>>,
 }
 
 /// Resource limits for one session; defaults a normal analysis never meets.
@@ -91,46 +95,7 @@ impl Limits {
     }
 }
 
-/// Lexically normalises a path: removes `.` and resolves `..` against earlier parts.
-fn normalise(p: &Path) -> PathBuf {
-    let mut out = PathBuf::new();
-    for c in p.components() {
-        match c {
-            Component::CurDir => {}
-            Component::ParentDir => {
-                out.pop();
-            }
-            other => out.push(other.as_os_str()),
-        }
-    }
-    out
-}
-
-/// Resolves symbolic links in the longest existing prefix of `p`, then appends the rest.
-fn resolve(p: &Path) -> PathBuf {
-    let p = normalise(p);
-    let mut existing = p.clone();
-    let mut rest = Vec::new();
-    loop {
-        if let Ok(c) = existing.canonicalize() {
-            let mut out = c;
-            for r in rest.iter().rev() {
-                out.push(r);
-            }
-            return normalise(&out);
-        }
-        match (
-            existing.file_name().map(|f| f.to_os_string()),
-            existing.parent(),
-        ) {
-            (Some(name), Some(parent)) => {
-                rest.push(name);
-                existing = parent.to_path_buf();
-            }
-            _ => return p,
-        }
-    }
-}
+use crate::safe_fs::resolve;
 
 impl Sandbox {
     /// A sandbox rooted at `root` (made absolute and resolved).
@@ -144,6 +109,7 @@ impl Sandbox {
             root: resolve(&abs),
             read: Vec::new(),
             write: Vec::new(),
+            reads: Arc::default(),
         }
     }
 
@@ -198,7 +164,18 @@ impl Sandbox {
 
     /// The real path to read for `path` (relative to the root), or why it is refused.
     pub fn read_path(&self, path: &str) -> Result<PathBuf, String> {
-        self.judge(path, false)
+        let real = self.judge(path, false)?;
+        if let Ok(mut r) = self.reads.lock() {
+            if !r.contains(&real) {
+                r.push(real.clone());
+            }
+        }
+        Ok(real)
+    }
+
+    /// The real paths scripts were allowed to read so far.
+    pub fn files_read(&self) -> Vec<PathBuf> {
+        self.reads.lock().map(|r| r.clone()).unwrap_or_default()
     }
 
     /// The real path to write for `path` (relative to the root), or why it is refused.
@@ -207,30 +184,13 @@ impl Sandbox {
     }
 }
 
-/// Writes `bytes` to `path` through a temporary file in the same folder and a rename, so
-/// that a crash or a full disk never leaves a half-written file in place.
+/// Writes `bytes` to `path`, a path the user named on the command line (symbolic links in
+/// it are followed, as the user meant them), through an exclusive temporary file and a
+/// rename (see `safe_fs`), so that a crash or a full disk never leaves a half-written file
+/// in place. Scripts' writes, judged by [`Sandbox::write_path`], go to
+/// `safe_fs::write_file` with the judged path directly.
 pub fn write_atomic(path: &Path, bytes: &[u8]) -> std::io::Result<()> {
-    use std::io::Write;
-    let dir = path
-        .parent()
-        .filter(|d| !d.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    let name = path
-        .file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_default();
-    // Unique per process and per write, so two sessions (threads) never share one.
-    static COUNTER: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
-    let k = COUNTER.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-    let tmp = dir.join(format!(".{name}.tmp-{}-{k}", std::process::id()));
-    {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-    }
-    std::fs::rename(&tmp, path).inspect_err(|_| {
-        let _ = std::fs::remove_file(&tmp);
-    })
+    crate::safe_fs::write_file(&resolve(path), bytes, false)
 }
 
 #[cfg(test)]

@@ -10,8 +10,8 @@
 //! extra record is drift.
 
 use super::output::NotebookRun;
-use crate::sandbox::write_atomic;
 use serde_json::{Map, Value};
+use sha2::Digest;
 use std::path::{Path, PathBuf};
 
 /// Format tag of results files.
@@ -26,8 +26,9 @@ pub fn results_path(analysis: &Path) -> PathBuf {
     analysis.with_file_name(format!("{stem}.results.json"))
 }
 
-/// The results document of a run.
-pub fn results_json(analysis_name: &str, records: &[(String, Value)]) -> String {
+/// The results document of a run: its records and the name of the report written with it
+/// (relative to the results file's folder when it lies there).
+pub fn results_json(analysis_name: &str, records: &[(String, Value)], report: &str) -> String {
     let mut sorted: Vec<&(String, Value)> = records.iter().collect();
     sorted.sort_by(|a, b| a.0.cmp(&b.0));
     let mut rec = Map::new();
@@ -37,21 +38,32 @@ pub fn results_json(analysis_name: &str, records: &[(String, Value)]) -> String 
     let mut doc = Map::new();
     doc.insert("format".into(), Value::String(RESULTS_FORMAT.into()));
     doc.insert("analysis".into(), Value::String(analysis_name.into()));
+    doc.insert("report".into(), Value::String(report.into()));
     doc.insert("records".into(), Value::Object(rec));
     let mut s = serde_json::to_string_pretty(&Value::Object(doc)).unwrap_or_default();
     s.push('\n');
     s
 }
 
-/// Writes the report (HTML, or Markdown with figure files) and the results file, each
-/// through a temporary file and a rename. Returns the paths written.
+/// Largest results file or report `check` reads back (bytes).
+pub const MAX_SAVED_BYTES: u64 = 256 * 1024 * 1024;
+
+/// Writes the report (HTML, or Markdown with figure files) and the results file as a
+/// pair: all of them go to exclusive temporary files first (see `safe_fs`), and only when
+/// every one is on disk are they renamed into place, the results file last. The report
+/// carries the SHA-256 of its results file, so a reader (`check`) can tell a matching
+/// pair from one that a crash between the renames or another render left behind. Refuses an output that would replace the analysis file, the
+/// results file or any file the run read (`inputs`, real paths). Returns the paths
+/// written. The caller holds the analysis file's lock ([`crate::safe_fs::lock`]).
 pub fn write_outputs(
     analysis: &Path,
     output: Option<&Path>,
     markdown: bool,
     run: &NotebookRun,
     records: &[(String, Value)],
+    inputs: &[PathBuf],
 ) -> Result<Vec<PathBuf>, String> {
+    use crate::safe_fs::{prepare, resolve};
     let stem = analysis
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())
@@ -60,38 +72,76 @@ pub fn write_outputs(
     let out = output
         .map(Path::to_path_buf)
         .unwrap_or_else(|| analysis.with_extension(ext));
-    let mut written = Vec::new();
-    let put = |p: &Path, bytes: &[u8], written: &mut Vec<PathBuf>| -> Result<(), String> {
-        write_atomic(p, bytes).map_err(|e| format!("cannot write {}: {e}", p.display()))?;
-        written.push(p.to_path_buf());
-        Ok(())
+    let results = results_path(analysis);
+    let (analysis_real, results_real) = (resolve(analysis), resolve(&results));
+    let refuse_input = |p: &Path| -> Result<PathBuf, String> {
+        let real = resolve(p);
+        let what = if real == analysis_real {
+            Some("the analysis file itself")
+        } else if real == results_real {
+            Some("its results file")
+        } else if inputs.contains(&real) {
+            Some("a file the run read")
+        } else {
+            None
+        };
+        match what {
+            Some(w) => Err(format!(
+                "refusing to write {}: it is {w} ({})\nhint: choose another -o path",
+                p.display(),
+                real.display()
+            )),
+            None => Ok(real),
+        }
     };
+    let out_real = refuse_input(&out)?;
+    let report_name = match (
+        out_real.parent(),
+        results_real.parent(),
+        out_real.file_name(),
+    ) {
+        (Some(a), Some(b), Some(n)) if a == b => n.to_string_lossy().into_owned(),
+        _ => out_real.display().to_string(),
+    };
+    let name = analysis
+        .file_name()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let results_text = results_json(&name, records, &report_name);
+    let mut paired = run.clone();
+    paired.provenance.results_sha256 =
+        super::files::hex(&sha2::Sha256::digest(results_text.as_bytes()));
+    let run = &paired;
+    let mut files: Vec<(PathBuf, String)> = Vec::new();
     if markdown {
         let out_stem = out
             .file_stem()
             .map(|s| s.to_string_lossy().into_owned())
             .unwrap_or(stem.clone());
         let md = crate::report::render_markdown(run, &out_stem);
-        for (name, svg) in &md.figures {
-            put(&out.with_file_name(name), svg.as_bytes(), &mut written)?;
+        for (name, svg) in md.figures {
+            files.push((out.with_file_name(name), svg));
         }
-        put(&out, md.text.as_bytes(), &mut written)?;
+        files.push((out.clone(), md.text));
     } else {
-        put(
-            &out,
-            crate::report::render_html(run).as_bytes(),
-            &mut written,
-        )?;
+        files.push((out.clone(), crate::report::render_html(run)));
     }
-    let name = analysis
-        .file_name()
-        .map(|s| s.to_string_lossy().into_owned())
-        .unwrap_or_default();
-    put(
-        &results_path(analysis),
-        results_json(&name, records).as_bytes(),
-        &mut written,
-    )?;
+    let mut pending = Vec::with_capacity(files.len() + 1);
+    for (p, text) in &files {
+        let real = refuse_input(p)?;
+        let w = prepare(&real, text.as_bytes(), false)
+            .map_err(|e| format!("cannot write {}: {e}", p.display()))?;
+        pending.push((p.clone(), w));
+    }
+    let w = prepare(&results_real, results_text.as_bytes(), false)
+        .map_err(|e| format!("cannot write {}: {e}", results.display()))?;
+    pending.push((results, w));
+    let mut written = Vec::with_capacity(pending.len());
+    for (p, w) in pending {
+        w.commit()
+            .map_err(|e| format!("cannot write {}: {e}", p.display()))?;
+        written.push(p);
+    }
     Ok(written)
 }
 
@@ -120,24 +170,69 @@ pub fn compare_with_saved(
     tolerance: f64,
 ) -> Result<CheckReport, String> {
     let path = results_path(analysis);
-    let text = std::fs::read_to_string(&path).map_err(|e| {
+    let real = crate::safe_fs::resolve_folder(&path);
+    // Never through a link at the name: a shipped `<stem>.results.json` link would
+    // otherwise show an outside file's content in the drift table.
+    let bytes = crate::safe_fs::read_no_follow(&real, MAX_SAVED_BYTES).map_err(|e| {
         format!(
             "cannot read the saved results {}: {e}\nhint: `statebook render {}` writes them",
             path.display(),
             analysis.display()
         )
     })?;
+    let text = String::from_utf8_lossy(&bytes);
     let saved: Value = serde_json::from_str(&text)
         .map_err(|e| format!("{} is not a valid results file: {e}", path.display()))?;
     let Some(saved_rec) = saved.get("records").and_then(Value::as_object) else {
         return Err(format!("{} has no \"records\" object", path.display()));
     };
+    check_pair(&saved, &bytes, &real, &path)?;
     Ok(compare(
         saved_rec,
         records,
         tolerance,
         &path.display().to_string(),
     ))
+}
+
+/// Checks that the report named by a results file carries the hash of exactly these
+/// results, so that a report is never taken with another run's results (a render
+/// interrupted between its renames, or two renders at once). Results files that name no
+/// report (older ones) pass.
+fn check_pair(saved: &Value, bytes: &[u8], real: &Path, shown: &Path) -> Result<(), String> {
+    let Some(report) = saved.get("report").and_then(Value::as_str) else {
+        return Ok(());
+    };
+    let run = super::files::hex(&sha2::Sha256::digest(bytes));
+    let run = run.as_str();
+    let report_path = real
+        .parent()
+        .map(|d| d.join(report))
+        .unwrap_or_else(|| PathBuf::from(report));
+    let report_real = crate::safe_fs::resolve_folder(&report_path);
+    let bytes = match crate::safe_fs::read_no_follow(&report_real, MAX_SAVED_BYTES) {
+        Ok(b) => b,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(()),
+        Err(e) => {
+            return Err(format!(
+                "cannot read the report {} paired with {}: {e}",
+                report_path.display(),
+                shown.display()
+            ))
+        }
+    };
+    let text = String::from_utf8_lossy(&bytes);
+    match crate::report::run_of_report(&text) {
+        Some(r) if r == run => Ok(()),
+        found => Err(format!(
+            "the report {} and the results {} come from different runs (the report was \
+             written with results of SHA-256 {}, these have {run}): a render was interrupted \
+             or two ran at once\nhint: run `statebook render` again to write a matching pair",
+            report_path.display(),
+            shown.display(),
+            found.unwrap_or("none")
+        )),
+    }
 }
 
 fn compare(

@@ -67,6 +67,7 @@ pub fn provenance(file_name: &str, sha256: &str) -> Provenance {
         sha256: sha256.to_string(),
         date: utc_now(),
         platform: format!("{}-{}", std::env::consts::OS, std::env::consts::ARCH),
+        results_sha256: String::new(),
     }
 }
 

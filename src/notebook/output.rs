@@ -53,6 +53,10 @@ pub struct Provenance {
     pub date: String,
     /// Operating system and architecture.
     pub platform: String,
+    /// SHA-256 of the results file written with the report (lowercase hex; empty until
+    /// `render` knows it), so that `check` can tell whether a report and a results file
+    /// were written together. The results file itself stays byte-stable.
+    pub results_sha256: String,
 }
 
 /// A whole run of an analysis file.

@@ -114,10 +114,11 @@ impl Cell {
     }
 }
 
-/// Parses an analysis file. Accepts LF and CRLF line endings and a leading byte-order
-/// mark. A file with no markers is one untitled cell.
+/// Parses an analysis file. Accepts LF, CRLF and CR-only line endings and a leading
+/// byte-order mark. A file with no markers is one untitled cell.
 pub fn parse(text: &str) -> Document {
-    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let text = crate::safe_fs::normalise_text(text);
+    let text = text.as_ref();
     let mut cells: Vec<Cell> = vec![Cell {
         title: String::new(),
         lines: Vec::new(),

@@ -62,8 +62,10 @@ pub fn run_text(
     file_name: &str,
     provenance: Provenance,
 ) -> NotebookRun {
-    let doc = parse(text);
-    run_document(session, &doc, file_name, text, provenance)
+    // CR-only and CRLF files run like LF ones, and error lines point into the same text.
+    let text = crate::safe_fs::normalise_text(text);
+    let doc = parse(&text);
+    run_document(session, &doc, file_name, &text, provenance)
 }
 
 /// The first error of a run, if it failed.

@@ -6,16 +6,19 @@
 //!
 //! ```text
 //! //== REPL session 2026-05-01 09:30 UTC
-//! //~ input
+//! //~ input 1
 //! let A = matrix([[0, 1], [-2, -3]]);
 //! //~ ok
-//! //~ input
+//! //~ input 1
 //! A.inverse(
 //! //~ error: syntax: …
 //! ```
 //!
-//! An input without a status line is one the session never finished (the terminal was
-//! closed, or statebook stopped while running it).
+//! The number after `input` counts the input's lines, which are taken verbatim: an input
+//! that itself holds a line such as `//~ ok` cannot end its entry early. (Logs written
+//! before the count, with a bare `//~ input`, are still read, by markers.) An input
+//! without a status line is one the session never finished (the terminal was closed, or
+//! statebook stopped while running it).
 
 /// Marks the start of an input in a session log.
 pub const INPUT: &str = "//~ input";
@@ -46,6 +49,12 @@ pub struct Entry {
     pub status: Status,
 }
 
+/// The log lines for an input: its marker with the line count, then the input verbatim.
+pub fn input_lines(code: &str) -> String {
+    let n = code.split('\n').count();
+    format!("{INPUT} {n}\n{code}")
+}
+
 /// The log lines for a status (after an input).
 pub fn status_line(error: Option<&str>) -> String {
     match error {
@@ -63,8 +72,43 @@ pub fn entries(log: &str) -> Result<Vec<Entry>, String> {
     let mut out: Vec<Entry> = Vec::new();
     let mut current: Option<Entry> = None;
     let mut seen_marker = false;
-    for (k, raw) in log.lines().enumerate() {
-        let line = raw.trim_end_matches('\r');
+    let lines: Vec<&str> = log.split('\n').collect();
+    let mut k = 0;
+    while k < lines.len() {
+        let line = lines[k].trim_end_matches('\r');
+        let counted = line
+            .strip_prefix(INPUT)
+            .and_then(|r| r.strip_prefix(' '))
+            .and_then(|n| n.trim().parse::<usize>().ok());
+        if let Some(n) = counted {
+            seen_marker = true;
+            out.extend(current.take());
+            let end = (k + 1 + n).min(lines.len());
+            let code: Vec<&str> = lines[k + 1..end]
+                .iter()
+                .map(|l| l.trim_end_matches('\r'))
+                .collect();
+            // A counted input is complete; only a status line may follow it.
+            current = Some(Entry {
+                line: k + 2,
+                code: code.join("\n"),
+                status: Status::Unfinished,
+            });
+            k = end;
+            if let Some(next) = lines.get(k).map(|l| l.trim_end_matches('\r')) {
+                if next == OK || next.starts_with(ERROR) {
+                    if let Some(mut e) = current.take() {
+                        e.status = status_of(next);
+                        out.push(e);
+                    }
+                    k += 1;
+                }
+            }
+            if let Some(e) = current.take() {
+                out.push(e);
+            }
+            continue;
+        }
         if line == INPUT {
             seen_marker = true;
             out.extend(current.take());
@@ -76,11 +120,7 @@ pub fn entries(log: &str) -> Result<Vec<Entry>, String> {
         } else if line == OK || line.starts_with(ERROR) {
             seen_marker = true;
             if let Some(mut e) = current.take() {
-                e.status = if line == OK {
-                    Status::Ok
-                } else {
-                    Status::Failed(line[ERROR.len()..].to_string())
-                };
+                e.status = status_of(line);
                 out.push(e);
             }
         } else if let Some(e) = current.as_mut() {
@@ -89,6 +129,7 @@ pub fn entries(log: &str) -> Result<Vec<Entry>, String> {
             }
             e.code.push_str(line);
         }
+        k += 1;
     }
     out.extend(current);
     if !seen_marker {
@@ -98,6 +139,13 @@ pub fn entries(log: &str) -> Result<Vec<Entry>, String> {
         ));
     }
     Ok(out)
+}
+
+fn status_of(line: &str) -> Status {
+    match line.strip_prefix(ERROR) {
+        Some(why) => Status::Failed(why.to_string()),
+        None => Status::Ok,
+    }
 }
 
 /// What [`to_analysis`] kept and left out.
@@ -195,6 +243,23 @@ mod tests {
             text.contains("log line 10 (failed: function not found"),
             "{text}"
         );
+    }
+
+    #[test]
+    fn an_input_holding_a_marker_line_stays_whole() {
+        let code = "let s = \"a\n//~ ok\n//~ input\nb\";";
+        let log = format!(
+            "//== REPL session\n{}\n{}\n{}\n{}\n",
+            input_lines(code),
+            status_line(None),
+            input_lines("s.len()"),
+            status_line(Some("error: boom"))
+        );
+        let e = entries(&log).unwrap();
+        assert_eq!(e.len(), 2, "{e:?}");
+        assert_eq!(e[0].code, code);
+        assert_eq!(e[0].status, Status::Ok);
+        assert_eq!(e[1].status, Status::Failed("boom".into()));
     }
 
     #[test]

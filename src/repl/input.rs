@@ -2,7 +2,6 @@
 //! incomplete-input detection and the session log.
 
 use rhai::{Engine, LexError, ParseErrorType};
-use std::path::Path;
 
 /// A REPL command (as opposed to script code).
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -53,23 +52,40 @@ pub fn is_incomplete(code: &str) -> bool {
     }
 }
 
-/// Opens a new session log under `dir` (`session-<time>.sbook`); every accepted input is
-/// appended and flushed at once, so a crash or a closed terminal loses nothing (format:
-/// `notebook::session_log`). The log is appended to, so it is the one file statebook
-/// writes without a temporary file and a rename.
-pub fn open_session_log(dir: &Path) -> Option<std::fs::File> {
+/// Opens a new session log `.statebook/sessions/session-<time>-<pid>.sbook` in the
+/// sandbox's root; every accepted input is appended and flushed at once, so a crash or a
+/// closed terminal loses nothing (format: `notebook::session_log`). The path is judged
+/// like a script's write (a shipped link leading outside is refused) and the file is
+/// created exclusively through folder handles (see `safe_fs`). Returns why no log could
+/// be opened.
+pub fn open_session_log(sandbox: &crate::sandbox::Sandbox) -> Result<std::fs::File, String> {
     use std::io::Write;
-    std::fs::create_dir_all(dir).ok()?;
     let stamp = crate::notebook::files::utc_now().replace([' ', ':'], "-");
-    let path = dir.join(format!("session-{stamp}-{}.sbook", std::process::id()));
-    let mut f = std::fs::OpenOptions::new()
-        .create(true)
-        .append(true)
-        .open(path)
-        .ok()?;
-    let _ = writeln!(f, "//== REPL session {}", crate::notebook::files::utc_now());
-    let _ = f.flush();
-    Some(f)
+    let mut last = String::new();
+    for attempt in 0..4 {
+        let suffix = if attempt == 0 {
+            String::new()
+        } else {
+            format!("-{}", crate::safe_fs::random_id())
+        };
+        let name = format!(
+            ".statebook/sessions/session-{stamp}-{}{suffix}.sbook",
+            std::process::id()
+        );
+        let real = sandbox.write_path(&name)?;
+        match crate::safe_fs::create_append(&real, true) {
+            Ok(mut f) => {
+                let _ = writeln!(f, "//== REPL session {}", crate::notebook::files::utc_now());
+                let _ = f.flush();
+                return Ok(f);
+            }
+            Err(e) if e.kind() == std::io::ErrorKind::AlreadyExists => {
+                last = e.to_string();
+            }
+            Err(e) => return Err(format!("cannot create {}: {e}", real.display())),
+        }
+    }
+    Err(last)
 }
 
 #[cfg(test)]

@@ -37,7 +37,7 @@ struct Repl {
 
 impl Repl {
     fn new(options: SessionOptions) -> Self {
-        let plots_dir = options.root.join("plots");
+        let plots_dir = PathBuf::from("plots");
         Repl {
             session: Session::new(&options),
             figures: 0,
@@ -111,8 +111,14 @@ impl Repl {
                 let path = self
                     .plots_dir
                     .join(format!("figure-{:03}.svg", self.figures));
-                let saved = std::fs::create_dir_all(&self.plots_dir)
-                    .and_then(|_| crate::sandbox::write_atomic(&path, svg.as_bytes()));
+                // Judged like a script's own write: a shipped `plots` link that leads
+                // outside the folder is refused, and the folder is opened by handle.
+                let saved = self
+                    .session
+                    .sandbox()
+                    .write_path(&path.to_string_lossy())
+                    .map_err(|m| std::io::Error::new(std::io::ErrorKind::PermissionDenied, m))
+                    .and_then(|real| crate::safe_fs::write_file(&real, svg.as_bytes(), true));
                 match saved {
                     Ok(()) => {
                         let _ = writeln!(out, "figure saved to {}", path.display());
@@ -130,7 +136,7 @@ impl Repl {
     /// even a crash while running it loses nothing).
     fn log_input(&mut self, code: &str) {
         if let Some(f) = self.log.as_mut() {
-            let _ = writeln!(f, "{}\n{code}", session_log::INPUT);
+            let _ = writeln!(f, "{}", session_log::input_lines(code));
             let _ = f.flush();
         }
     }
@@ -161,7 +167,7 @@ impl Repl {
         if let Some(h) = &history {
             let _ = editor.load_history(h);
         }
-        self.log = input::open_session_log(&self.session_log_dir());
+        self.log = self.open_log(&mut std::io::stderr());
         println!(
             "statebook {} — type an expression, `help` for the built-ins, `help NAME` for one, \
              `quit` to leave",
@@ -201,18 +207,57 @@ impl Repl {
         0
     }
 
-    fn session_log_dir(&self) -> PathBuf {
-        self.session.root().join(".statebook").join("sessions")
+    /// Opens the session log, or warns on `err` that none is kept (a read-only folder, a
+    /// refused link).
+    fn open_log(&self, err: &mut dyn Write) -> Option<std::fs::File> {
+        match input::open_session_log(self.session.sandbox()) {
+            Ok(f) => Some(f),
+            Err(why) => {
+                let _ = writeln!(err, "warning: no session log is kept: {why}");
+                None
+            }
+        }
     }
 
     fn piped(&mut self) -> u8 {
-        self.log = input::open_session_log(&self.session_log_dir());
         let stdin = std::io::stdin();
         let (mut out, mut err) = (std::io::stdout().lock(), std::io::stderr().lock());
+        self.log = self.open_log(&mut err);
         let mut buffer = String::new();
         let mut failed = false;
-        for line in stdin.lock().lines() {
-            let Ok(line) = line else { break };
+        let mut reader = stdin.lock();
+        let mut number = 0usize;
+        loop {
+            let mut bytes = Vec::new();
+            match reader.read_until(b'\n', &mut bytes) {
+                Ok(0) => break,
+                Ok(_) => {}
+                Err(e) => {
+                    let _ = writeln!(err, "error: cannot read the input: {e}");
+                    failed = true;
+                    break;
+                }
+            }
+            number += 1;
+            if bytes.last() == Some(&b'\n') {
+                bytes.pop();
+            }
+            if bytes.last() == Some(&b'\r') {
+                bytes.pop();
+            }
+            let line = match String::from_utf8(bytes) {
+                Ok(l) => l,
+                Err(e) => {
+                    let _ = writeln!(
+                        err,
+                        "error: input line {number} is not UTF-8 text (invalid byte at offset \
+                         {}); it was skipped",
+                        e.utf8_error().valid_up_to()
+                    );
+                    failed = true;
+                    continue;
+                }
+            };
             if buffer.is_empty() && line.trim().is_empty() {
                 continue;
             }

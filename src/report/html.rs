@@ -225,6 +225,11 @@ fn push_provenance(page: &mut String, provenance: &Provenance) {
         ("SHA-256", escape_html(&provenance.sha256), true),
         ("Run on", escape_html(&provenance.date), false),
         ("Platform", escape_html(&provenance.platform), false),
+        (
+            "Results SHA-256",
+            escape_html(&provenance.results_sha256),
+            true,
+        ),
     ];
     page.push_str("<footer class=\"doc-foot\">\n<section class=\"provenance\">\n");
     page.push_str("<h2>Provenance</h2>\n<dl>\n");
@@ -236,7 +241,9 @@ fn push_provenance(page: &mut String, provenance: &Provenance) {
         };
         let _ = writeln!(page, "<div><dt>{label}</dt><dd>{value}</dd></div>");
     }
-    page.push_str("</dl>\n</section>\n<section class=\"caution\">\n");
+    page.push_str("</dl>\n");
+    let _ = writeln!(page, "{}", super::run_marker(&provenance.results_sha256));
+    page.push_str("</section>\n<section class=\"caution\">\n");
     let _ = writeln!(page, "<h2>{CAUTION_HEADING}</h2>");
     for paragraph in CAUTION {
         let _ = writeln!(page, "<p>{}</p>", escape_html(paragraph));

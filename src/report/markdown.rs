@@ -75,7 +75,8 @@ fn push_cell(
         let _ = writeln!(text, "## {}\n", escape_inline(cell.title.trim()));
     }
     if !cell.prose.trim().is_empty() {
-        let _ = writeln!(text, "{}\n", demote_headings(cell.prose.trim()));
+        let prose = super::sanitize_markdown(cell.prose.trim());
+        let _ = writeln!(text, "{}\n", demote_headings(&prose));
     }
     if !cell.code.trim().is_empty() {
         push_fenced(text, "rhai", cell.code.trim_matches('\n'));
@@ -94,7 +95,8 @@ fn push_cell(
             Output::Text(printed) => push_fenced(text, "text", printed),
             Output::Value(value) => push_fenced(text, "text", value.trim_end_matches('\n')),
             Output::Note(markdown) => {
-                let _ = writeln!(text, "{}\n", demote_headings(markdown.trim()));
+                let note = super::sanitize_markdown(markdown.trim());
+                let _ = writeln!(text, "{}\n", demote_headings(&note));
             }
             Output::Figure { svg, title } => {
                 in_cell += 1;
@@ -135,7 +137,13 @@ fn push_provenance(text: &mut String, run: &NotebookRun) {
     let _ = writeln!(text, "- Analysis file: {}", code_span(&p.file_name));
     let _ = writeln!(text, "- SHA-256: {}", code_span(&p.sha256));
     let _ = writeln!(text, "- Run on: {}", escape_inline(&p.date));
-    let _ = writeln!(text, "- Platform: {}\n", escape_inline(&p.platform));
+    let _ = writeln!(text, "- Platform: {}", escape_inline(&p.platform));
+    let _ = writeln!(
+        text,
+        "- Results SHA-256: {}\n",
+        code_span(&p.results_sha256)
+    );
+    let _ = writeln!(text, "{}\n", super::run_marker(&p.results_sha256));
     let _ = writeln!(text, "## {CAUTION_HEADING}\n");
     let paragraphs: Vec<&str> = CAUTION.to_vec();
     let _ = writeln!(text, "{}", paragraphs.join("\n\n"));

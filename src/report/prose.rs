@@ -65,6 +65,62 @@ pub(super) fn markdown_to_html(markdown: &str, scope: &str) -> String {
     out
 }
 
+/// Makes untrusted Markdown prose safe to pass on in a Markdown report, with the same
+/// policy as [`markdown_to_html`]: raw HTML (blocks and inline tags) is escaped so that it
+/// shows as text, and a link with a harmful destination (`javascript:`, `data:` …) or an
+/// image is written out as escaped plain text, so no viewer follows or fetches it.
+/// Everything else is left byte for byte.
+pub fn sanitize_markdown(markdown: &str) -> String {
+    let mut edits: Vec<(std::ops::Range<usize>, String)> = Vec::new();
+    for (event, range) in Parser::new_ext(markdown, options()).into_offset_iter() {
+        let source = markdown.get(range.clone()).unwrap_or("");
+        let edit = match &event {
+            Event::Html(_) | Event::InlineHtml(_) => Some(escape_markup(source)),
+            Event::Start(Tag::Link { dest_url, .. }) if !is_safe_destination(dest_url) => {
+                Some(escape_markdown(source))
+            }
+            Event::Start(Tag::Image { .. }) => Some(format!(
+                "\\[image not embedded: {}\\]",
+                escape_markdown(source)
+            )),
+            _ => None,
+        };
+        if let Some(text) = edit {
+            if edits.last().is_none_or(|(r, _)| range.start >= r.end) {
+                edits.push((range, text));
+            }
+        }
+    }
+    let mut out = String::with_capacity(markdown.len() + 16 * edits.len());
+    let mut at = 0;
+    for (range, text) in edits {
+        out.push_str(markdown.get(at..range.start).unwrap_or(""));
+        out.push_str(&text);
+        at = range.end;
+    }
+    out.push_str(markdown.get(at..).unwrap_or(""));
+    out
+}
+
+/// `&`, `<` and `>` as character references, which Markdown shows as the characters.
+fn escape_markup(text: &str) -> String {
+    text.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+}
+
+/// Backslash-escapes every character Markdown could read as a link, image or tag.
+fn escape_markdown(text: &str) -> String {
+    let mut out = String::with_capacity(text.len() + 8);
+    for ch in text.chars() {
+        if "\\`*_[]()<>!#|&".contains(ch) {
+            out.push('\\');
+        }
+        out.push(ch);
+    }
+    out
+}
+
 /// The heading level two below `level` (`#` in prose becomes `<h3>`), at most `<h6>`.
 fn demote(level: HeadingLevel) -> HeadingLevel {
     match level {

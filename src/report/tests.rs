@@ -31,6 +31,7 @@ fn provenance() -> Provenance {
         sha256: "ab".repeat(32),
         date: "2025-01-02 03:04 UTC".into(),
         platform: "linux x86_64".into(),
+        results_sha256: "cd".repeat(32),
     }
 }
 

@@ -147,6 +147,6 @@ pub fn write_bytes(
         .sandbox
         .write_path(path)
         .map_err(|e| fail(format!("{fname}: {e}")))?;
-    crate::sandbox::write_atomic(&real, bytes)
+    crate::safe_fs::write_file(&real, bytes, false)
         .map_err(|e| fail(format!("{fname}: cannot write {path}: {e}")))
 }

@@ -52,8 +52,10 @@ fn cells(line: &str) -> Vec<String> {
     out.into_iter().map(|c| c.trim().to_string()).collect()
 }
 
-/// Parses numeric CSV text: (header, matrix). Errors name the line and column.
+/// Parses numeric CSV text: (header, matrix). Errors name the line and column. A leading
+/// byte-order mark is dropped and CRLF or CR-only line ends are read as line ends.
 pub fn parse_csv(text: &str, name: &str) -> Result<(Option<Vec<String>>, DMatrix<f64>), String> {
+    let text = crate::safe_fs::normalise_text(text);
     let mut header = None;
     let mut rows: Vec<Vec<f64>> = Vec::new();
     for (k, raw) in text.lines().enumerate() {
@@ -166,7 +168,7 @@ fn write(
         .write_path(&path)
         .map_err(|e| fail(format!("write_csv: {e}")))?;
     let text = format_csv(&m, headers.as_deref());
-    crate::sandbox::write_atomic(&real, text.as_bytes())
+    crate::safe_fs::write_file(&real, text.as_bytes(), false)
         .map_err(|e| fail(format!("write_csv: cannot write {path}: {e}")))
 }
 

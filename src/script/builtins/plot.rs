@@ -223,7 +223,7 @@ pub fn register(engine: &mut Engine) {
                 .write_path(&path)
                 .map_err(|m| fail(format!("save: {m}")))?;
             let text = svg(fig)?;
-            crate::sandbox::write_atomic(&real, text.as_bytes())
+            crate::safe_fs::write_file(&real, text.as_bytes(), false)
                 .map_err(|e| fail(format!("save: cannot write {path}: {e}")))
         },
     );

@@ -436,7 +436,7 @@ pub fn register(engine: &mut Engine) {
                 .sandbox
                 .write_path(&path)
                 .map_err(|m| fail(format!("save_csv: {m}")))?;
-            crate::sandbox::write_atomic(&real, t.to_csv().as_bytes())
+            crate::safe_fs::write_file(&real, t.to_csv().as_bytes(), false)
                 .map_err(|e| fail(format!("save_csv: cannot write {path}: {e}")))
         },
     );

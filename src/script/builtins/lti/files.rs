@@ -167,7 +167,7 @@ pub fn register(engine: &mut Engine) {
             let doc = encode(&m)?;
             let mut text = serde_json::to_string_pretty(&doc).unwrap_or_default();
             text.push('\n');
-            crate::sandbox::write_atomic(&real, text.as_bytes())
+            crate::safe_fs::write_file(&real, text.as_bytes(), false)
                 .map_err(|e| fail(format!("save_model: cannot write {path}: {e}")))
         },
     );
