@@ -1,7 +1,7 @@
 //! Conversions between transfer functions and state-space models, and the companion
 //! (canonical) realizations of single-input single-output models.
 
-use super::staircase::minimal_realization;
+use super::staircase::{balance_system, minimal_realization};
 use super::system::StateSpace;
 use super::tf::TransferFunction;
 use super::transform::rcond;
@@ -46,9 +46,16 @@ pub fn from_transfer_function(tf: &TransferFunction) -> NumResult<StateSpace> {
     let b = DMatrix::from_fn(n, 1, |i, _| if i == 0 { 1.0 } else { 0.0 });
     let c = DMatrix::from_fn(1, n, |_, j| num[j + 1] - b0 * den[j + 1]);
     let d = DMatrix::from_element(1, 1, b0);
+    let sc = balance_system(&a, &b, &c);
+    let spread = sc.state.iter().fold(1.0f64, |m, s| m.max(*s).max(1.0 / s));
+    let (a, b, c) = if spread > 4.0 {
+        sc.apply_state(&a, &b, &c)
+    } else {
+        (a, b, c)
+    };
     let min = minimal_realization(&a, &b, &c, &d, None)?;
     if min.removed == 0 {
-        // Already minimal: keep the readable companion form.
+        // Already minimal: keep the (balanced) companion form.
         return StateSpace::new(a, b, c, d, tf.dt);
     }
     StateSpace::new(min.a, min.b, min.c, min.d, tf.dt)
