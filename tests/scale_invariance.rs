@@ -446,3 +446,29 @@ fn seeded_random_models_keep_poles_gains_norms_and_hankel_values_under_scaling()
         bad.join("\n")
     );
 }
+
+#[test]
+fn companion_forms_of_scaled_models_are_not_refused() {
+    // A change of state units leaves a controllable and observable model so: the companion
+    // forms exist (the Krylov recursion, Cayley–Hamilton) and share the characteristic
+    // polynomial s² + 5s + 10 of A = [[−1, 2], [−3, −4]] (trace −5, determinant 10). The
+    // Krylov basis of the scaled copy has condition ~1e14: that is a warning, not a verdict.
+    use statebook::numeric::lti::realize::{controllable_companion, observable_companion};
+    let base = siso(&[-1.0, 2.0, -3.0, -4.0], &[1.0, 1.0], &[1.0, 0.5]);
+    for s in [[1e7, 1e-7], [1e-7, 1e7], [1.0, 1.0]] {
+        let x = scaled(&base, &s);
+        let (cf, _, cond) = controllable_companion(&x).unwrap();
+        assert!(cond.is_finite() && cond >= 1.0);
+        assert!(
+            rel(cf.a[(0, 0)], -5.0) < 1e-8 && rel(cf.a[(0, 1)], -10.0) < 1e-8,
+            "{}",
+            cf.a
+        );
+        let (of, _, _) = observable_companion(&x).unwrap();
+        assert!(
+            rel(of.a[(0, 0)], -5.0) < 1e-8 && rel(of.a[(1, 0)], -10.0) < 1e-8,
+            "{}",
+            of.a
+        );
+    }
+}
