@@ -409,32 +409,41 @@ fn seeded_random_models_keep_poles_gains_norms_and_hankel_values_under_scaling()
         for (si, s) in scalings(n).iter().enumerate() {
             let x = scaled(&sys, s);
             let label = format!("case {case} (n = {n}), scaling {si}");
-            let px = sorted_poles(&x);
-            let poles_ok = px.len() == p0.len()
-                && p0.iter().all(|w| {
-                    px.iter()
-                        .map(|g| (g - w).norm())
-                        .fold(f64::INFINITY, f64::min)
-                        <= 1e-8 * w.norm()
-                });
-            let gx = dc_gain(&x).unwrap();
-            let gain_ok = (&gx - &g0).norm() <= 1e-8 * g0.norm();
-            let h2 = h2_norm(&x).unwrap();
-            let (hi, _) = hinf_norm(&x).unwrap();
-            let hsv = hankel_singular_values(&x.a, &x.b, &x.c, 0.0);
-            let hsv_ok = match &hsv {
-                Ok(h) => h
-                    .iter()
-                    .zip(&hsv0)
-                    .all(|(a, b)| (a - b).abs() <= 1e-8 * hsv0[0]),
-                Err(_) => false,
-            };
-            if !(poles_ok && gain_ok && rel(h2, h20) < 1e-8 && rel(hi, hi0) < 1e-8 && hsv_ok) {
-                bad.push(format!(
-                    "{label}: poles {poles_ok}, DC {gain_ok}, H2 {h2} vs {h20}, H∞ {hi} vs \
-                     {hi0}, HSV {:?} vs {hsv0:?}",
-                    hsv
-                ));
+            // A panic inside a routine counts as a changed answer (and is reported).
+            let verdict = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+                let px = sorted_poles(&x);
+                let poles_ok = px.len() == p0.len()
+                    && p0.iter().all(|w| {
+                        px.iter()
+                            .map(|g| (g - w).norm())
+                            .fold(f64::INFINITY, f64::min)
+                            <= 1e-8 * w.norm()
+                    });
+                let gx = dc_gain(&x).expect("DC gain");
+                let gain_ok = (&gx - &g0).norm() <= 1e-8 * g0.norm();
+                let h2 = h2_norm(&x).expect("H2 norm");
+                let (hi, _) = hinf_norm(&x).expect("H∞ norm");
+                let hsv = hankel_singular_values(&x.a, &x.b, &x.c, 0.0);
+                let hsv_ok = match &hsv {
+                    Ok(h) => h
+                        .iter()
+                        .zip(&hsv0)
+                        .all(|(a, b)| (a - b).abs() <= 1e-8 * hsv0[0]),
+                    Err(_) => false,
+                };
+                if poles_ok && gain_ok && rel(h2, h20) < 1e-8 && rel(hi, hi0) < 1e-8 && hsv_ok {
+                    None
+                } else {
+                    Some(format!(
+                        "poles {poles_ok}, DC {gain_ok}, H2 {h2} vs {h20}, H∞ {hi} vs {hi0}, \
+                         HSV {hsv:?} vs {hsv0:?}"
+                    ))
+                }
+            }));
+            match verdict {
+                Ok(None) => {}
+                Ok(Some(why)) => bad.push(format!("{label}: {why}")),
+                Err(_) => bad.push(format!("{label}: panicked")),
             }
         }
     }
