@@ -238,6 +238,43 @@ fn transfer_functions_keep_order_poles_and_dc_gain_at_every_time_scale() {
 }
 
 #[test]
+fn common_factors_cancel_and_round_trips_agree_at_every_time_scale() {
+    // (s + ω)/((s + ω)(s + 2ω)) = 1/(s + 2ω): the realization drops exactly the cancelled
+    // mode (one state left, pole −2ω, DC gain 1/(2ω)), at every time scale; and the
+    // transfer function of the realized low-pass has the denominator it came from.
+    use statebook::numeric::lti::realize::to_transfer_function;
+    let mut failures = Vec::new();
+    for k in -3..=6 {
+        let w = 10f64.powi(k);
+        let g = TransferFunction::new(&[1.0, w], &[1.0, 3.0 * w, 2.0 * w * w], 0.0).expect("valid");
+        let sys = from_transfer_function(&g).expect("realization");
+        let p = poles(&sys).expect("poles");
+        let dc = dc_gain(&sys).expect("DC gain")[(0, 0)];
+        if !(sys.order() == 1 && rel(p[0].re, -2.0 * w) < 1e-9 && rel(dc, 0.5 / w) < 1e-9) {
+            failures.push(format!(
+                "ω = {w:e}: order {}, poles {p:?}, DC {dc}",
+                sys.order()
+            ));
+        }
+        let lp = low_pass_3(w);
+        let sys = from_transfer_function(&lp).expect("realization");
+        let back = &to_transfer_function(&sys).expect("transfer function")[0][0];
+        let same = back.den.len() == lp.den.len()
+            && back
+                .den
+                .iter()
+                .zip(&lp.den)
+                .all(|(x, y)| (x - y).abs() <= 1e-9 * y.abs())
+            && back.num.len() == 1
+            && rel(back.num[0], lp.num[0]) < 1e-9;
+        if !same {
+            failures.push(format!("ωc = {w:e}: round trip {back:?} vs {lp:?}"));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
 fn issue13_minimal_realization_of_a_2_pow_13_scaled_model_keeps_its_states() {
     // Issue 13 item 1: a minimal model with states scaled by 2¹³ came back with order 0;
     // random 4-state models with states scaled 1e-3…1e3 lost a state.

@@ -292,6 +292,26 @@ mod tests {
     }
 
     #[test]
+    fn units_of_a_state_do_not_decide_controllability() {
+        // A = diag(−1, −2), B = [1; δ]: for δ ≠ 0 the scaling x₂ = δ·z₂ (a similarity) gives
+        // B = [1; 1] with distinct eigenvalues, controllable by the PBH test (Hautus 1969)
+        // whatever δ is; δ = 0 leaves the mode −2 uncontrollable.
+        let a = DMatrix::from_row_slice(2, 2, &[-1.0, 0.0, 0.0, -2.0]);
+        for d in [1e-12, 1e-6, 1.0, 1e6, 1e12] {
+            let b = DMatrix::from_column_slice(2, 1, &[1.0, d]);
+            assert!(is_controllable(&a, &b, None).unwrap(), "δ = {d}");
+            assert!(uncontrollable_modes(&a, &b, None).unwrap().is_empty());
+            assert!(is_observable(&a, &b.transpose(), None).unwrap(), "δ = {d}");
+        }
+        let b = DMatrix::from_column_slice(2, 1, &[1.0, 0.0]);
+        assert!(!is_controllable(&a, &b, None).unwrap());
+        assert_eq!(
+            uncontrollable_modes(&a, &b, None).unwrap(),
+            vec![Complex::new(-2.0, 0.0)]
+        );
+    }
+
+    #[test]
     fn krylov_matrices_by_hand() {
         // Double integrator A = [[0, 1], [0, 0]], B = [0; 1]: AB = [1; 0], so
         // [B, AB] = [[0, 1], [1, 0]]; C = [1, 0]: CA = [0, 1], [C; CA] = I (by hand).
