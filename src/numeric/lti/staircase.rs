@@ -35,8 +35,8 @@
 //! [`minimal_realization`], [`kalman_decomposition`], [`is_controllable`],
 //! [`is_observable`], [`uncontrollable_modes`], [`unobservable_modes`] — first balances the
 //! system matrix `[[A, B], [C, 0]]` by power-of-two diagonal scalings of the states, inputs
-//! and outputs (`scaling.rs`: Parlett & Reinsch 1969 applied to the system matrix, as
-//! recommended before staircase reductions by Van Dooren 1981), decides on the scaled data
+//! and outputs (`scaling.rs`: Parlett & Reinsch 1969 applied to the system matrix, the
+//! system balancing customary before staircase reductions), decides on the scaled data
 //! with the thresholds above taken relative to the *scaled* norms, and reports the result
 //! in the user's coordinates. A diagonal change of state units (1e-6…1e6, or the companion
 //! form of a transfer function with coefficients near 1e15) then gives the same answer as

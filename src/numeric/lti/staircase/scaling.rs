@@ -4,12 +4,12 @@
 //! observable, yet the staircase's rank thresholds, relative to `‖[A B]‖`, see a badly
 //! scaled model as nearly rank deficient: the ones on the sub-diagonal of a companion form
 //! with coefficients near 1e9 sit below `√ε·1e9`. Balancing the system matrix first makes
-//! every decision independent of the units the model was written in (Van Dooren 1981, "The
-//! generalized eigenstructure problem in linear system theory", IEEE Trans. Automatic
-//! Control, recommends a diagonal balancing of the system pencil before the rank-revealing
-//! reductions; the scaling itself is that of Parlett & Reinsch 1969, "Balancing a matrix for
-//! calculation of eigenvalues and eigenvectors", Numer. Math. 13, applied to the system
-//! matrix `[[A, B], [C, 0]]`).
+//! every decision independent of the units the model was written in. The scaling is that of
+//! Parlett & Reinsch 1969, "Balancing a matrix for calculation of eigenvalues and
+//! eigenvectors", Numer. Math. 13, here applied to the system matrix `[[A, B], [C, 0]]`
+//! (the kind of system balancing used before staircase reductions in the literature on
+//! Van Dooren's and Varga's algorithms; the adaptation to a rectangular system matrix, with
+//! signal weights and the rule for one-sided states below, is this crate's own).
 //!
 //! Scalings are powers of two, so applying and undoing them is exact.
 
