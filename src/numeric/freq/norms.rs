@@ -6,8 +6,14 @@
 //!
 //! **Stability.** Both norms are those of the Hardy spaces: a model with a pole on or
 //! beyond the stability boundary (`Re λ ≥ 0`, `|λ| ≥ 1`, judged with the margin of the
-//! Lyapunov solvers: `−2 Re λ > 10⁻¹²·2‖A‖_F`, resp. `1 − |λ|² > 10⁻¹²(1 + ‖A‖_F²)`)
-//! has infinite H2 and H∞ norms; the routines return `f64::INFINITY` for it, not an error.
+//! Lyapunov solvers, relative to each pole's own size: `−2 Re λ > 2·max(10⁻¹²|λ|,
+//! 8ε‖Ã‖_F)`, resp. `1 − |λ|² > max(10⁻¹²(1 + |λ|²), 16ε‖Ã‖_F)`, Ã the balanced A) has
+//! infinite H2 and H∞ norms; the routines return `f64::INFINITY` for it, not an error.
+//!
+//! **Scaling.** The state coordinates are balanced (a power-of-two diagonal similarity of
+//! the system matrix, which leaves the transfer function unchanged) before the Lyapunov
+//! solve and before the Hamiltonian imaginary-axis test, so the norms do not depend on the
+//! units of the states.
 
 use crate::numeric::freq::grid::{
     auto_frequency_grid, brent_root, extend_grid, siso_sweep, SweepParams,
@@ -183,6 +189,13 @@ pub fn hinf_norm_with(sys: &StateSpace, params: &HinfParams) -> NumResult<(f64, 
     if let Some(w) = unstable(sys)? {
         return Ok((f64::INFINITY, w));
     }
+    // Balanced state coordinates (same transfer function): the Hamiltonian's
+    // imaginary-axis test is then relative to a matrix whose size reflects the dynamics,
+    // not the units of the states.
+    let sc = crate::numeric::lti::staircase::balance_system(&sys.a, &sys.b, &sys.c);
+    let (ab, bb, cb) = sc.apply_state(&sys.a, &sys.b, &sys.c);
+    let balanced = sys.with_matrices(ab, bb, cb, sys.d.clone())?;
+    let sys = &balanced;
     if !sys.is_discrete() {
         return level_set(sys, params);
     }
@@ -407,7 +420,7 @@ fn unstable(sys: &StateSpace) -> NumResult<Option<f64>> {
     let discrete = sys.is_discrete();
     if stability_violation(
         &eigs,
-        sys.a.norm(),
+        crate::numeric::linalg::dense::balanced_frobenius_norm(&sys.a),
         discrete,
         &MatrixEquationParams::default(),
     )

@@ -153,6 +153,16 @@ pub(crate) fn balance_reducing_norm(a: &DMatrix<f64>) -> Option<(DMatrix<f64>, D
     }
 }
 
+/// ‖D⁻¹AD‖_F of the Parlett–Reinsch balanced matrix (‖A‖_F when balancing does not help):
+/// the scale of the rounding errors of A's computed eigenvalues, independent of the units
+/// of the states. `a` must be finite and square.
+pub(crate) fn balanced_frobenius_norm(a: &DMatrix<f64>) -> f64 {
+    match balance_reducing_norm(a) {
+        Some((b, _)) => frobenius_norm(&b),
+        None => frobenius_norm(a),
+    }
+}
+
 /// Undoes [`balance_reducing_norm`] on a function value: returns D F D⁻¹.
 pub(crate) fn unbalance(f: &mut DMatrix<f64>, d: &DVector<f64>) {
     let n = f.nrows();

@@ -11,6 +11,7 @@
 
 use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
+use crate::numeric::linalg::dense::balance_reducing_norm;
 use crate::numeric::linalg::sylvester::{
     fmt_complex, quasi_blocks, real_schur, MatrixEquationParams,
 };
@@ -49,9 +50,14 @@ pub fn lyapunov_cholesky(a: &DMatrix<f64>, b: &DMatrix<f64>) -> NumResult<DMatri
 /// triangular factor of `B`, `O(n³)` complex flops for the recursion and one QR of a
 /// 2n×n matrix.
 ///
+/// **Scaling.** `A` is balanced first (Parlett & Reinsch 1969, a power-of-two diagonal
+/// similarity `Ã = D⁻¹AD`; then `U = D Ũ`), so neither the margin nor the accuracy depends
+/// on the units of the states.
+///
 /// **Tolerance.** `A` must be stable with margin: an eigenvalue with
-/// `−2 Re λ ≤ params.resonance_tol · 2‖A‖_F` (the `λ + λ̄ ≈ 0` resonance of the Lyapunov
-/// equation) gives [`NumError::NoSolution`] naming the eigenvalue; so does an unstable one.
+/// `−2 Re λ ≤ 2·max(params.resonance_tol·|λ|, 8ε‖Ã‖_F)` (the `λ + λ̄ ≈ 0` resonance of
+/// the Lyapunov equation, judged against the eigenvalue's own size) gives
+/// [`NumError::NoSolution`] naming the eigenvalue; so does an unstable one.
 pub fn lyapunov_cholesky_with(
     a: &DMatrix<f64>,
     b: &DMatrix<f64>,
@@ -82,8 +88,9 @@ pub fn lyapunov_cholesky_discrete(a: &DMatrix<f64>, b: &DMatrix<f64>) -> NumResu
 ///
 /// **Cost.** As [`lyapunov_cholesky_with`].
 ///
-/// **Tolerance.** An eigenvalue with `1 − |λ|² ≤ params.resonance_tol · (1 + ‖A‖_F²)`
-/// (the `λλ̄ ≈ 1` resonance) or `|λ| ≥ 1` gives [`NumError::NoSolution`].
+/// **Tolerance.** An eigenvalue with
+/// `1 − |λ|² ≤ max(params.resonance_tol·(1 + |λ|²), 16ε‖Ã‖_F)` (the `λλ̄ ≈ 1` resonance;
+/// Ã the balanced A) or `|λ| ≥ 1` gives [`NumError::NoSolution`].
 pub fn lyapunov_cholesky_discrete_with(
     a: &DMatrix<f64>,
     b: &DMatrix<f64>,
@@ -110,6 +117,28 @@ fn factor_impl(
     if n == 0 {
         return Ok(DMatrix::zeros(0, 0));
     }
+    // Balance first (a power-of-two diagonal similarity Ã = D⁻¹AD, B̃ = D⁻¹B, so P = D P̃ D
+    // and U = D Ũ stays upper triangular): the Schur form, the stability margin and the
+    // recursion then do not depend on the units of the states.
+    if let Some((ab, d)) = balance_reducing_norm(a) {
+        let bb = DMatrix::from_fn(n, b.ncols(), |i, j| b[(i, j)] / d[i]);
+        let mut u = factor_balanced(&ab, &bb, discrete, params)?;
+        for (i, di) in d.iter().enumerate() {
+            u.row_mut(i).scale_mut(*di);
+        }
+        return Ok(u);
+    }
+    factor_balanced(a, b, discrete, params)
+}
+
+/// [`factor_impl`] on a balanced (or already well-scaled) `A`, n ≥ 1, checked arguments.
+fn factor_balanced(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    discrete: bool,
+    params: &MatrixEquationParams,
+) -> NumResult<DMatrix<f64>> {
+    let n = a.nrows();
     let (q, t) = real_schur(a, "A", params)?;
     let (w, s) = complex_schur(q, t)?;
     check_stability(&s, a, discrete, params)?;
@@ -256,56 +285,70 @@ fn check_stability(
     }
 }
 
-/// Why a matrix with eigenvalues `eigs` and Frobenius norm `norm_a` is not stable with
-/// margin (continuous: every `−2 Re λ > resonance_tol · 2‖A‖_F`; discrete: every
-/// `1 − |λ|² > resonance_tol · (1 + ‖A‖_F²)`), or `None` when it is.
+/// Rounding level of a computed eigenvalue, relative to the norm of the balanced matrix: a
+/// backward-stable Schur form moves a well-conditioned eigenvalue by a small multiple of
+/// ε·‖Ã‖ (Wilkinson 1965, *The Algebraic Eigenvalue Problem*, ch. 2).
+const EIGENVALUE_ROUNDING: f64 = 8.0 * f64::EPSILON;
+
+/// Why a matrix with eigenvalues `eigs` is not stable with margin, or `None` when it is.
+///
+/// Each eigenvalue is judged against **its own scale**, not against ‖A‖: continuous, every
+/// `−2 Re λ > 2·max(resonance_tol·|λ|, 8ε·norm_a)`; discrete, every
+/// `1 − |λ|² > max(resonance_tol·(1 + |λ|²), 16ε·norm_a)`. `norm_a` must be the Frobenius
+/// norm of the **balanced** matrix (Parlett–Reinsch, see
+/// [`crate::numeric::linalg::dense::balance_reducing_norm`]), so that it measures the
+/// rounding errors of the eigenvalues and not the units of the states: a stiff
+/// `diag(−1e6, −1e-6)` is stable, a computed integrator (λ at rounding level) is not. The
+/// relative part `resonance_tol·|λ|` is a damping ratio below which the mode counts as on
+/// the boundary (default 1e-12).
 pub(crate) fn stability_violation(
     eigs: &[C64],
     norm_a: f64,
     discrete: bool,
     params: &MatrixEquationParams,
 ) -> Option<String> {
-    // The worst eigenvalue: largest real part, or largest modulus.
-    let mut worst = *eigs.first()?;
-    for &z in eigs.iter().skip(1) {
-        if (discrete && z.norm() > worst.norm()) || (!discrete && z.re > worst.re) {
-            worst = z;
-        }
-    }
-    if discrete {
-        let margin = (1.0 - worst.norm()) * (1.0 + worst.norm());
-        let floor = params.resonance_tol * (1.0 + norm_a * norm_a);
-        if worst.norm() >= 1.0 {
-            return Some(format!(
-                "A is not Schur-stable: eigenvalue {} has modulus {:.6} ≥ 1",
-                fmt_complex(worst),
-                worst.norm()
-            ));
-        }
-        if margin <= floor {
-            return Some(format!(
-                "A is on the unit circle to working precision: eigenvalue {} has \
-                 1 − |λ|² = {margin:.3e}, at or below the tolerance {floor:.3e}",
-                fmt_complex(worst)
-            ));
-        }
-    } else {
-        let margin = -2.0 * worst.re;
-        let floor = params.resonance_tol * 2.0 * norm_a;
-        if worst.re >= 0.0 {
+    let round = EIGENVALUE_ROUNDING * norm_a;
+    for &z in eigs {
+        if discrete {
+            let r = z.norm();
+            if r >= 1.0 {
+                return Some(format!(
+                    "A is not Schur-stable: eigenvalue {} has modulus {:.6} ≥ 1",
+                    fmt_complex(z),
+                    r
+                ));
+            }
+        } else if z.re >= 0.0 {
             return Some(format!(
                 "A is not Hurwitz (continuous-time stable): eigenvalue {} has real part \
                  {:.6e} ≥ 0",
-                fmt_complex(worst),
-                worst.re
+                fmt_complex(z),
+                z.re
             ));
         }
-        if margin <= floor {
-            return Some(format!(
-                "A is on the imaginary axis to working precision: eigenvalue {} has \
-                 −2 Re λ = {margin:.3e}, at or below the tolerance {floor:.3e}",
-                fmt_complex(worst)
-            ));
+    }
+    for &z in eigs {
+        if discrete {
+            let r = z.norm();
+            let margin = (1.0 - r) * (1.0 + r);
+            let floor = (params.resonance_tol * (1.0 + r * r)).max(2.0 * round);
+            if margin <= floor {
+                return Some(format!(
+                    "A is on the unit circle to working precision: eigenvalue {} has \
+                     1 − |λ|² = {margin:.3e}, at or below the tolerance {floor:.3e}",
+                    fmt_complex(z)
+                ));
+            }
+        } else {
+            let margin = -2.0 * z.re;
+            let floor = 2.0 * (params.resonance_tol * z.norm()).max(round);
+            if margin <= floor {
+                return Some(format!(
+                    "A is on the imaginary axis to working precision: eigenvalue {} has \
+                     −2 Re λ = {margin:.3e}, at or below the tolerance {floor:.3e}",
+                    fmt_complex(z)
+                ));
+            }
         }
     }
     None

@@ -208,10 +208,35 @@ fn lyapunov_impl(
     if n == 0 {
         return Ok(DMatrix::zeros(0, 0));
     }
+    // Balance first (Parlett & Reinsch 1969): with the power-of-two diagonal similarity
+    // Ã = D⁻¹AD the equation for X̃ = D⁻¹XD⁻¹ has Q̃ = D⁻¹QD⁻¹ (both the continuous and the
+    // discrete form), and X = D X̃ D exactly; the Schur form and the pivot tests then do not
+    // depend on the units of the states.
+    if let Some((ab, d)) = crate::numeric::linalg::dense::balance_reducing_norm(a) {
+        let qb = DMatrix::from_fn(n, n, |i, j| q[(i, j)] / (d[i] * d[j]));
+        let xb = lyapunov_balanced(&ab, &qb, kind, params)?;
+        return finite_solution(
+            match kind {
+                Kind::Continuous => "Lyapunov equation A X + X Aᵀ + Q = 0",
+                Kind::Discrete => "discrete Lyapunov equation A X Aᵀ − X + Q = 0",
+            },
+            DMatrix::from_fn(n, n, |i, j| xb[(i, j)] * d[i] * d[j]),
+        );
+    }
+    lyapunov_balanced(a, &q, kind, params)
+}
+
+/// [`lyapunov_impl`] on a balanced (or already well-scaled) `A`, n ≥ 1, symmetric `Q`.
+fn lyapunov_balanced(
+    a: &DMatrix<f64>,
+    q: &DMatrix<f64>,
+    kind: Kind,
+    params: &MatrixEquationParams,
+) -> NumResult<DMatrix<f64>> {
     let (u, s) = real_schur(a, "A", params)?;
     let r = reverse_transpose(&s);
     // F J with F = −Uᵀ Q U: reversing the columns of F.
-    let f = -(u.transpose() * &q * &u);
+    let f = -(u.transpose() * q * &u);
     let fj = reverse_columns(&f);
     let (scale, what, cause) = match kind {
         Kind::Continuous => (

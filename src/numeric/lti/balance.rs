@@ -476,6 +476,11 @@ fn require_stable(
     if a.nrows() == 0 {
         return Ok(());
     }
+    // On the balanced A (Parlett & Reinsch 1969): the margin is judged against each
+    // eigenvalue's own size and the rounding level of the balanced matrix, not the units
+    // of the states.
+    let balanced = crate::numeric::linalg::dense::balance_reducing_norm(a).map(|(b, _)| b);
+    let a = balanced.as_ref().unwrap_or(a);
     let (_, t) = real_schur(a, "A", params)?;
     let mut eigs = Vec::with_capacity(t.nrows());
     for (start, size) in quasi_blocks(&t)? {

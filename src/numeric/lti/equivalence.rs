@@ -9,7 +9,7 @@
 //! magnitude of the two models, so that fast and slow models are judged alike; a
 //! frequency-response comparison on a grid covering every pole cross-checks the verdict.
 
-use super::staircase::minimal_realization;
+use super::staircase::{balance_system, minimal_realization};
 use super::system::StateSpace;
 use super::transform::{rcond, transform_state};
 use crate::numeric::freq::response::FrequencyEvaluator;
@@ -281,11 +281,30 @@ pub fn find_transform(a: &StateSpace, b: &StateSpace) -> NumResult<DMatrix<f64>>
         .ok_or_else(|| NumError::no_solution("find_transform", eq.reason))
 }
 
+/// The similarity between two minimal models, found between their balanced forms: with the
+/// power-of-two state scalings `S_a`, `S_b` of the system matrices (Parlett & Reinsch 1969
+/// applied to `[[A, B], [C, 0]]`, see the staircase module, § Units) and the transform `T̃`
+/// between the balanced models, `T = S_a T̃ S_b⁻¹` (exact). So a badly scaled `T` such as
+/// `diag(2⁻¹³, 2¹³)` is recovered as well as the identity.
+fn recover_transform(a: &StateSpace, b: &StateSpace) -> NumResult<DMatrix<f64>> {
+    let balanced = |s: &StateSpace| -> NumResult<(StateSpace, Vec<f64>)> {
+        let sc = balance_system(&s.a, &s.b, &s.c);
+        let (ab, bb, cb) = sc.apply_state(&s.a, &s.b, &s.c);
+        Ok((s.with_matrices(ab, bb, cb, s.d.clone())?, sc.state))
+    };
+    let (ab, sa) = balanced(a)?;
+    let (bb, sb) = balanced(b)?;
+    let t = recover_balanced(&ab, &bb)?;
+    Ok(DMatrix::from_fn(t.nrows(), t.ncols(), |i, j| {
+        sa[i] * t[(i, j)] / sb[j]
+    }))
+}
+
 /// Solves `A_a T = T A_b`, `T B_b = B_a`, `C_a T = C_b` for T: for minimal models the
 /// solution is unique. Small orders solve the Kronecker system by least squares; larger
 /// ones use `T = K_a K_b⁺` with time-scaled Krylov matrices `K = [B, αAB, …]`. Either way
 /// the result is verified by transforming `a` and comparing with `b`.
-fn recover_transform(a: &StateSpace, b: &StateSpace) -> NumResult<DMatrix<f64>> {
+fn recover_balanced(a: &StateSpace, b: &StateSpace) -> NumResult<DMatrix<f64>> {
     let n = a.order();
     if n == 0 {
         return Ok(DMatrix::zeros(0, 0));

@@ -1,7 +1,7 @@
 //! Conversions between transfer functions and state-space models, and the companion
 //! (canonical) realizations of single-input single-output models.
 
-use super::staircase::minimal_realization;
+use super::staircase::{balance_system, is_controllable, is_observable, minimal_realization};
 use super::system::StateSpace;
 use super::tf::TransferFunction;
 use super::transform::rcond;
@@ -46,9 +46,16 @@ pub fn from_transfer_function(tf: &TransferFunction) -> NumResult<StateSpace> {
     let b = DMatrix::from_fn(n, 1, |i, _| if i == 0 { 1.0 } else { 0.0 });
     let c = DMatrix::from_fn(1, n, |_, j| num[j + 1] - b0 * den[j + 1]);
     let d = DMatrix::from_element(1, 1, b0);
+    let sc = balance_system(&a, &b, &c);
+    let spread = sc.state.iter().fold(1.0f64, |m, s| m.max(*s).max(1.0 / s));
+    let (a, b, c) = if spread > 4.0 {
+        sc.apply_state(&a, &b, &c)
+    } else {
+        (a, b, c)
+    };
     let min = minimal_realization(&a, &b, &c, &d, None)?;
     if min.removed == 0 {
-        // Already minimal: keep the readable companion form.
+        // Already minimal: keep the (balanced) companion form.
         return StateSpace::new(a, b, c, d, tf.dt);
     }
     StateSpace::new(min.a, min.b, min.c, min.d, tf.dt)
@@ -146,8 +153,10 @@ fn require_siso(sys: &StateSpace, what: &str) -> NumResult<()> {
 /// reduction), `T` has columns `t₁ = B`, `t_{k+1} = A t_k + a_k B`, which makes
 /// `T⁻¹AT` the companion matrix with first row `[−a₁ … −aₙ]` and ones below the
 /// diagonal, and `T⁻¹B = e₁` (the recursion is the Krylov construction; Cayley–Hamilton
-/// closes it). Requires a controllable model. Companion forms are inherently
-/// ill-conditioned for large n; the condition number of `T` is returned for a warning.
+/// closes it). Requires a controllable model, decided by the staircase on the balanced
+/// system matrix ([`is_controllable`]), so a change of state units alone never refuses it.
+/// Companion forms are inherently ill-conditioned for large n or badly scaled states; the
+/// condition number of `T` is returned for a warning.
 pub fn controllable_companion(sys: &StateSpace) -> NumResult<(StateSpace, DMatrix<f64>, f64)> {
     require_siso(sys, "controllable_realization")?;
     let n = sys.order();
@@ -160,8 +169,11 @@ pub fn controllable_companion(sys: &StateSpace) -> NumResult<(StateSpace, DMatri
             t.set_column(k, &next);
         }
     }
+    // Controllability is decided by the balanced staircase (independent of the units of
+    // the states), not by the conditioning of the Krylov basis, which a mere change of
+    // units can make as poor as one likes; that condition is returned for a warning.
     let rc = rcond(&t);
-    if rc < (n.max(1) as f64) * f64::EPSILON * 16.0 {
+    if !is_controllable(&sys.a, &sys.b, None)? || rc == 0.0 {
         return Err(NumError::no_solution(
             "controllable_realization",
             format!(
@@ -190,7 +202,7 @@ pub fn controllable_companion(sys: &StateSpace) -> NumResult<(StateSpace, DMatri
 ///
 /// Dual of [`controllable_companion`]: `S = T⁻¹` has rows `s₁ = C`, `s_{k+1} = s_k A +
 /// a_k C`, giving `T⁻¹AT` with first column `[−a₁ … −aₙ]ᵀ` and ones above the diagonal,
-/// and `CT = e₁ᵀ`. Requires an observable model.
+/// and `CT = e₁ᵀ`. Requires an observable model ([`is_observable`], balanced).
 pub fn observable_companion(sys: &StateSpace) -> NumResult<(StateSpace, DMatrix<f64>, f64)> {
     require_siso(sys, "observable_realization")?;
     let n = sys.order();
@@ -203,8 +215,9 @@ pub fn observable_companion(sys: &StateSpace) -> NumResult<(StateSpace, DMatrix<
             s.set_row(k, &next);
         }
     }
+    // Decided by the balanced staircase, as in controllable_companion.
     let rc = rcond(&s);
-    if rc < (n.max(1) as f64) * f64::EPSILON * 16.0 {
+    if !is_observable(&sys.a, &sys.c, None)? || rc == 0.0 {
         return Err(NumError::no_solution(
             "observable_realization",
             format!(

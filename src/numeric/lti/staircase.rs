@@ -29,6 +29,19 @@
 //! sub-diagonal block counts as non-zero when `σ > θ` with `θ = tol · ‖[A B]‖_F`; the
 //! observability staircase uses `θ = tol · ‖[A; C]‖_F`. `tol` must be finite and ≥ 0.
 //!
+//! # Units do not change a decision
+//! [`controllability_staircase`] and [`observability_staircase`] are the orthogonal
+//! reductions of the data exactly as given. Every decision built on them —
+//! [`minimal_realization`], [`kalman_decomposition`], [`is_controllable`],
+//! [`is_observable`], [`uncontrollable_modes`], [`unobservable_modes`] — first balances the
+//! system matrix `[[A, B], [C, 0]]` by power-of-two diagonal scalings of the states, inputs
+//! and outputs (`scaling.rs`: Parlett & Reinsch 1969 applied to the system matrix, the
+//! system balancing customary before staircase reductions), decides on the scaled data
+//! with the thresholds above taken relative to the *scaled* norms, and reports the result
+//! in the user's coordinates. A diagonal change of state units (1e-6…1e6, or the companion
+//! form of a transfer function with coefficients near 1e15) then gives the same answer as
+//! the unscaled model.
+//!
 //! The default is [`DEFAULT_RANK_TOLERANCE`] `= √ε ≈ 1.5e-8` (ε = 2⁻⁵²): a coupling weaker
 //! than about eight digits below the size of the model counts as absent. The reduction's own
 //! rounding errors are far smaller (of order n·ε·‖[A B]‖), but a model that was itself
@@ -61,11 +74,14 @@ mod fixtures;
 mod kalman;
 #[path = "staircase/minimal.rs"]
 mod minimal;
+#[path = "staircase/scaling.rs"]
+mod scaling;
 #[path = "staircase/structure.rs"]
 mod structure;
 
 pub use kalman::{kalman_decomposition, Kalman, KalmanSizes};
 pub use minimal::{minimal_realization, Minimal};
+pub(crate) use scaling::balance_system;
 pub use structure::{
     controllability_matrix, is_controllable, is_observable, observability_matrix,
     uncontrollable_modes, unobservable_modes, MAX_KRYLOV_ENTRIES,

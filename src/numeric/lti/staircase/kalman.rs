@@ -3,8 +3,8 @@
 
 use super::factor::{row_jacobi, LeftFactor};
 use super::{
-    check_abc, check_d, joint_frobenius, observability_unchecked, relative_tolerance,
-    staircase_unchecked,
+    balance_system, check_abc, check_d, joint_frobenius, observability_unchecked,
+    relative_tolerance, staircase_unchecked,
 };
 use crate::numeric::error::{NumError, NumResult};
 use nalgebra::DMatrix;
@@ -48,7 +48,8 @@ pub struct Kalman {
     pub d: DMatrix<f64>,
     /// The transformation `T` (n×n), old state `x = T z`; columns of unit length.
     pub t: DMatrix<f64>,
-    /// Its inverse `T⁻¹`, from a singular value decomposition of `T`.
+    /// Its inverse `T⁻¹`, from a singular value decomposition of the decomposition's
+    /// transformation in balanced coordinates (the diagonal scaling is undone exactly).
     pub t_inv: DMatrix<f64>,
     /// Sizes of the four parts.
     pub sizes: KalmanSizes,
@@ -98,10 +99,18 @@ pub struct Kalman {
 /// Jacobi SVD of T (Hestenes 1958). The structural zeros are then set exactly. Cost
 /// O(n³ + n²(m + p)): three staircases, two SVDs of at most n×n, and the products.
 ///
-/// Tolerance: that of the staircases (module documentation), at the scale of the model as
-/// given, exactly as in [`super::minimal_realization`]: controllability against
-/// `tol·‖[A B]‖_F`, both observability staircases against `tol·‖[A; C]‖_F` (default `tol` =
-/// [`super::DEFAULT_RANK_TOLERANCE`] = √ε). See also `structure_residual`.
+/// Scaling: as in [`super::minimal_realization`], steps (1)–(6) run on the balanced system
+/// matrix (module documentation, § Units): with the diagonal state scaling `S` and the
+/// transformation `T̃` found there, each block of `S T̃` is orthonormalised by a QR
+/// factorisation, `S T̃ = T R` with `R` block-diagonal, so `T⁻¹ = R T̃⁻¹ S⁻¹`: the blocks
+/// of `T` are orthonormal bases of the same subspaces in the user's coordinates (T is
+/// orthogonal for a minimal model), the block pattern is the same and the decisions do not
+/// depend on the units of the states.
+///
+/// Tolerance: that of the staircases (module documentation), at the scale of the whole
+/// (balanced) model, exactly as in [`super::minimal_realization`]: controllability against
+/// `tol·‖[Ã B̃]‖_F`, both observability staircases against `tol·‖[Ã; C̃]‖_F` (default `tol`
+/// = [`super::DEFAULT_RANK_TOLERANCE`] = √ε). See also `structure_residual`.
 ///
 /// Errors: A not square; B, C or D of the wrong shape; a NaN or infinite entry; `tol`
 /// negative or not finite; an SVD that does not converge; [`NumError::Singular`] if T is
@@ -115,6 +124,9 @@ pub fn kalman_decomposition(
 ) -> NumResult<Kalman> {
     let (n, m, p) = check_abc(a, b, c)?;
     check_d(d, p, m)?;
+    let sc = balance_system(a, b, c);
+    let (a, b, c) = sc.apply(a, b, c);
+    let (a, b, c) = (&a, &b, &c);
     // (1) controllable subspace R and its complement.
     let st = staircase_unchecked(a, b, c, relative_tolerance(tol)?, None)?;
     let nc = st.controllable;
@@ -159,14 +171,49 @@ pub fn kalman_decomposition(
         t.columns_mut(col, part.ncols()).copy_from(part);
         col += part.ncols();
     }
-    // (6) the inverse and the condition number.
-    let (t_inv, condition) = inverse_by_svd(&t)?;
+    // (6) the inverse and the condition number (balanced coordinates).
+    let (t_inv, _) = inverse_by_svd(&t)?;
     let mut at = &t_inv * a * &t;
     let mut bt = &t_inv * b;
     let mut ct = c * &t;
     let total = joint_frobenius(&[&at, &bt, &ct]);
     let discarded = zero_structure(&mut at, &mut bt, &mut ct, sizes);
     let structure_residual = if total > 0.0 { discarded / total } else { 0.0 };
+    // Back to the user's coordinates. Each block of S T̃ spans the user-coordinate subspace
+    // of its part; orthonormalise it within the block: S T̃_k = Q_k R_k (QR), T = [Q_k] with
+    // orthonormal blocks, T = S T̃ R⁻¹ and T⁻¹ = R T̃⁻¹ S⁻¹ with R = blockdiag(R_k) upper
+    // triangular; the new model is R (·) R⁻¹ of the balanced one (same block pattern).
+    let st = sc.state_matrix() * &t;
+    let mut t_user = DMatrix::zeros(n, n);
+    let mut r = DMatrix::zeros(n, n);
+    let mut off = 0;
+    for len in sizes.as_array() {
+        if len > 0 {
+            let qr = st.columns(off, len).clone_owned().qr();
+            t_user.columns_mut(off, len).copy_from(&qr.q());
+            r.view_mut((off, off), (len, len)).copy_from(&qr.r());
+        }
+        off += len;
+    }
+    let singular = || NumError::Singular {
+        what: "a block of the Kalman transformation T".into(),
+        rcond: 0.0,
+    };
+    let mut t_inv_user = &r * t_inv;
+    for (j, &sj) in sc.state.iter().enumerate() {
+        t_inv_user.column_mut(j).scale_mut(1.0 / sj);
+    }
+    // M R⁻¹ = (R⁻ᵀ Mᵀ)ᵀ.
+    let right_inv = |m: &DMatrix<f64>| -> NumResult<DMatrix<f64>> {
+        Ok(r.tr_solve_upper_triangular(&m.transpose())
+            .ok_or_else(singular)?
+            .transpose())
+    };
+    let at = right_inv(&(&r * at))?;
+    let bt = sc.unweight_b(&(&r * bt));
+    let ct = sc.unweight_c(&right_inv(&ct)?);
+    let condition = condition_number(&t_user)?;
+    let (t, t_inv) = (t_user, t_inv_user);
     Ok(Kalman {
         a: at,
         b: bt,
@@ -201,6 +248,21 @@ fn inverse_by_svd(t: &DMatrix<f64>) -> NumResult<(DMatrix<f64>, f64)> {
         wt.column_mut(j).scale_mut(1.0 / (sj * sj));
     }
     Ok((wt * u.transpose(), smax / smin))
+}
+
+/// κ₂(T) = σ_max/σ_min from the one-sided Jacobi singular values (1 for n = 0).
+fn condition_number(t: &DMatrix<f64>) -> NumResult<f64> {
+    if t.nrows() == 0 {
+        return Ok(1.0);
+    }
+    let (s, _, _) = row_jacobi(t)?;
+    let smax = s.first().copied().unwrap_or(0.0);
+    let smin = s.last().copied().unwrap_or(0.0);
+    Ok(if smin > 0.0 {
+        smax / smin
+    } else {
+        f64::INFINITY
+    })
 }
 
 /// Sets the structural zero blocks of the Kalman form exactly to zero; returns the

@@ -1,8 +1,8 @@
 //! Minimal realisation by two orthogonal staircase reductions.
 
 use super::{
-    check_abc, check_d, joint_frobenius, observability_unchecked, relative_tolerance,
-    staircase_unchecked, RankMargins,
+    balance_system, check_abc, check_d, joint_frobenius, observability_unchecked,
+    relative_tolerance, staircase_unchecked, RankMargins,
 };
 use crate::numeric::error::NumResult;
 use nalgebra::DMatrix;
@@ -51,12 +51,19 @@ pub struct Minimal {
 /// coordinates of `z = diag(Q₂, I)ᵀ Q₁ᵀ x`, for the orthogonal `Q₁` (n×n) and `Q₂` (nc×nc)
 /// of the two staircases. Cost O(n³ + n²(m + p)).
 ///
-/// Tolerance: relative, as in the module documentation, and always at the scale of the model
-/// as given — the first staircase decides against `tol·‖[A B]‖_F`, the second against
-/// `tol·‖[A; C]‖_F` (default `tol` = [`super::DEFAULT_RANK_TOLERANCE`] = √ε for both), not
-/// against the norm of the smaller controllable part, whose rounding errors come from the
-/// whole of A. The returned [`RankMargins`] give the smallest kept and largest dropped
-/// singular values of each.
+/// Scaling: the system matrix is balanced first by power-of-two scalings of states, inputs
+/// and outputs (module documentation, § Units), both staircases run on the balanced data,
+/// and the result is brought back exactly: the reduced state is the leading r coordinates
+/// of `z = diag(Q₂, I)ᵀ Q₁ᵀ S⁻¹ x` with `S` the diagonal state scaling, and the reduced
+/// `B`, `C` carry the user's input and output units. So the decisions do not depend on the
+/// units of the states.
+///
+/// Tolerance: relative, as in the module documentation, and always at the scale of the whole
+/// (balanced) model — the first staircase decides against `tol·‖[Ã B̃]‖_F`, the second
+/// against `tol·‖[Ã; C̃]‖_F` (default `tol` = [`super::DEFAULT_RANK_TOLERANCE`] = √ε for
+/// both), not against the norm of the smaller controllable part, whose rounding errors come
+/// from the whole of A. The returned [`RankMargins`] give the smallest kept and largest
+/// dropped singular values of each, in the balanced scaling.
 ///
 /// Errors: A not square; B, C or D of the wrong shape; a NaN or infinite entry; `tol`
 /// negative or not finite; an SVD that does not converge.
@@ -69,20 +76,23 @@ pub fn minimal_realization(
 ) -> NumResult<Minimal> {
     let (n, m, p) = check_abc(a, b, c)?;
     check_d(d, p, m)?;
-    let st = staircase_unchecked(a, b, c, relative_tolerance(tol)?, None)?;
+    let rel = relative_tolerance(tol)?;
+    let sc = balance_system(a, b, c);
+    let (a, b, c) = sc.apply(a, b, c);
+    let st = staircase_unchecked(&a, &b, &c, rel, None)?;
     let nc = st.controllable;
     let ac = st.a.view((0, 0), (nc, nc)).clone_owned();
     let bc = st.b.rows(0, nc).clone_owned();
     let cc = st.c.columns(0, nc).clone_owned();
-    // Judged at the scale of the model as given: the controllable part inherits its
+    // Judged at the scale of the (balanced) model: the controllable part inherits its
     // rounding errors from the whole of A.
-    let scale = joint_frobenius(&[a, &c.transpose()]);
-    let ob = observability_unchecked(&ac, &bc, &cc, relative_tolerance(tol)?, Some(scale))?;
+    let scale = joint_frobenius(&[&a, &c.transpose()]);
+    let ob = observability_unchecked(&ac, &bc, &cc, rel, Some(scale))?;
     let r = ob.observable;
     Ok(Minimal {
         a: ob.a.view((0, 0), (r, r)).clone_owned(),
-        b: ob.b.rows(0, r).clone_owned(),
-        c: ob.c.columns(0, r).clone_owned(),
+        b: sc.unweight_b(&ob.b.rows(0, r).clone_owned()),
+        c: sc.unweight_c(&ob.c.columns(0, r).clone_owned()),
         d: d.clone(),
         removed: n - r,
         uncontrollable_removed: n - nc,
@@ -194,8 +204,10 @@ mod tests {
                 2 * n + 2,
                 markov_tol(&b, &c),
             );
-            // Orthogonal transformations keep the Frobenius norm (common practice).
-            assert_close!(min.a.norm(), a.norm(), 0.0, 1e-12);
+            // Orthogonal transformations keep the Frobenius norm (common practice) of the
+            // balanced A (a power-of-two diagonal similarity of A).
+            let (ab, _, _) = balance_system(&a, &b, &c).apply(&a, &b, &c);
+            assert_close!(min.a.norm(), ab.norm(), 0.0, 1e-12);
         }
     }
 

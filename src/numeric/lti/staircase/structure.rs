@@ -1,10 +1,12 @@
 //! Structural tests: controllability, observability, their modes, and the (display-only)
 //! controllability and observability matrices.
 
-use super::{check_abc, observability_unchecked, relative_tolerance, staircase_unchecked};
+use super::{
+    balance_system, check_abc, observability_unchecked, relative_tolerance, staircase_unchecked,
+};
 use crate::numeric::error::{NumError, NumResult};
 use crate::numeric::{check, order};
-use nalgebra::{Complex, DMatrix, Schur};
+use nalgebra::{Complex, DMatrix};
 
 /// Largest number of entries [`controllability_matrix`] and [`observability_matrix`] build.
 pub const MAX_KRYLOV_ENTRIES: usize = 1 << 25;
@@ -17,7 +19,8 @@ pub const MAX_KRYLOV_ENTRIES: usize = 1 << 25;
 /// the staircase, never from that matrix. Cost O(n³ + n²m). A model with no states is
 /// controllable.
 ///
-/// Tolerance: relative to `‖[A B]‖_F`, default `√ε` (module documentation).
+/// Tolerance: relative to `‖[Ã B̃]‖_F` of the balanced pair (module documentation, § Units:
+/// the decision does not depend on the units of the states or inputs), default `√ε`.
 ///
 /// Errors: A not square; B without n rows; a NaN or infinite entry; a bad `tol`.
 pub fn is_controllable(a: &DMatrix<f64>, b: &DMatrix<f64>, tol: Option<f64>) -> NumResult<bool> {
@@ -25,7 +28,8 @@ pub fn is_controllable(a: &DMatrix<f64>, b: &DMatrix<f64>, tol: Option<f64>) -> 
     let c = DMatrix::zeros(0, a.ncols());
     check_abc(a, b, &c)?;
     let rel = relative_tolerance(tol)?;
-    Ok(staircase_unchecked(a, b, &c, rel, None)?.controllable == n)
+    let (a, b, c) = balance_system(a, b, &c).apply(a, b, &c);
+    Ok(staircase_unchecked(&a, &b, &c, rel, None)?.controllable == n)
 }
 
 /// Whether `(A, C)` is observable: the observable part of the observability staircase
@@ -34,7 +38,8 @@ pub fn is_controllable(a: &DMatrix<f64>, b: &DMatrix<f64>, tol: Option<f64>) -> 
 /// Mathematics: by duality, `(A, C)` is observable iff `(Aᵀ, Cᵀ)` is controllable (Kalman
 /// 1963). Cost O(n³ + n²p). A model with no states is observable.
 ///
-/// Tolerance: relative to `‖[A; C]‖_F`, default `√ε`.
+/// Tolerance: relative to `‖[Ã; C̃]‖_F` of the balanced pair (module documentation,
+/// § Units), default `√ε`.
 ///
 /// Errors: A not square; C without n columns; a NaN or infinite entry; a bad `tol`.
 pub fn is_observable(a: &DMatrix<f64>, c: &DMatrix<f64>, tol: Option<f64>) -> NumResult<bool> {
@@ -42,7 +47,8 @@ pub fn is_observable(a: &DMatrix<f64>, c: &DMatrix<f64>, tol: Option<f64>) -> Nu
     let b = DMatrix::zeros(a.ncols(), 0);
     check_abc(a, &b, c)?;
     let rel = relative_tolerance(tol)?;
-    Ok(observability_unchecked(a, &b, c, rel, None)?.observable == n)
+    let (a, b, c) = balance_system(a, &b, c).apply(a, &b, c);
+    Ok(observability_unchecked(&a, &b, &c, rel, None)?.observable == n)
 }
 
 /// The uncontrollable modes of `(A, B)`: the eigenvalues λ with rank `[A − λI, B] < n`,
@@ -55,8 +61,9 @@ pub fn is_observable(a: &DMatrix<f64>, c: &DMatrix<f64>, tol: Option<f64>) -> Nu
 /// staircase, then the eigenvalues of `A_uc` (balanced by Parlett & Reinsch 1969, then the
 /// real Schur form). Cost O(n³). Empty when `(A, B)` is controllable.
 ///
-/// Tolerance: that of the staircase (module documentation). The eigenvalues of `A_uc` carry
-/// the usual eigenvalue errors (ε·‖A‖ times their condition numbers).
+/// Tolerance: that of the staircase on the balanced pair (module documentation, § Units).
+/// The eigenvalues of `A_uc` carry the usual eigenvalue errors (ε·‖Ã‖ times their condition
+/// numbers, Ã the balanced A).
 ///
 /// Errors: as [`is_controllable`]; a Schur iteration that does not converge.
 pub fn uncontrollable_modes(
@@ -68,7 +75,8 @@ pub fn uncontrollable_modes(
     let c = DMatrix::zeros(0, a.ncols());
     check_abc(a, b, &c)?;
     let rel = relative_tolerance(tol)?;
-    let st = staircase_unchecked(a, b, &c, rel, None)?;
+    let (a, b, c) = balance_system(a, b, &c).apply(a, b, &c);
+    let st = staircase_unchecked(&a, &b, &c, rel, None)?;
     let nc = st.controllable;
     sorted_eigenvalues(&st.a.view((nc, nc), (n - nc, n - nc)).clone_owned())
 }
@@ -80,7 +88,7 @@ pub fn uncontrollable_modes(
 /// unobservable block `A_uo` of the observability staircase (Hautus 1969). Cost O(n³). Empty
 /// when `(A, C)` is observable.
 ///
-/// Tolerance: that of the observability staircase.
+/// Tolerance: that of the observability staircase on the balanced pair.
 ///
 /// Errors: as [`is_observable`]; a Schur iteration that does not converge.
 pub fn unobservable_modes(
@@ -92,7 +100,8 @@ pub fn unobservable_modes(
     let b = DMatrix::zeros(a.ncols(), 0);
     check_abc(a, &b, c)?;
     let rel = relative_tolerance(tol)?;
-    let st = observability_unchecked(a, &b, c, rel, None)?;
+    let (a, b, c) = balance_system(a, &b, c).apply(a, &b, c);
+    let st = observability_unchecked(&a, &b, &c, rel, None)?;
     let no = st.observable;
     sorted_eigenvalues(&st.a.view((no, no), (n - no, n - no)).clone_owned())
 }
@@ -169,31 +178,27 @@ pub fn observability_matrix(a: &DMatrix<f64>, c: &DMatrix<f64>) -> NumResult<DMa
 
 /// Eigenvalues of a square matrix, sorted by [`order::sort_eigenvalues`]: Parlett–Reinsch
 /// balancing (Parlett & Reinsch 1969, "Balancing a matrix for calculation of eigenvalues and
-/// eigenvectors", Numer. Math.) of the matrix scaled to unit largest entry, then nalgebra's
-/// real Schur form, scaled back. Empty for 0×0.
+/// eigenvectors", Numer. Math.) of the matrix scaled to unit largest entry, then the
+/// crate's one real Schur path ([`crate::numeric::linalg::dense::real_schur`]; nalgebra's
+/// iteration stalls on cyclic matrices), scaled back. Empty for 0×0.
 pub(crate) fn sorted_eigenvalues(m: &DMatrix<f64>) -> NumResult<Vec<Complex<f64>>> {
     let n = m.nrows();
     if n == 0 {
         return Ok(Vec::new());
     }
-    // Scaled to max |mᵢⱼ| = 1 first: balancing squares row and column norms and would
-    // overflow (and then never terminate) on entries near 1e±300.
-    let scale = m.amax();
-    if scale == 0.0 {
+    // Scaled to max |mᵢⱼ| = 1 first (an exact power of two): balancing squares row and
+    // column norms and would overflow on entries near 1e±300.
+    let amax = m.amax();
+    if amax == 0.0 {
         return Ok(vec![Complex::new(0.0, 0.0); n]);
     }
-    let mut work = m / scale;
-    nalgebra::linalg::balancing::balance_parlett_reinsch(&mut work);
-    let cap = 1000 + 100 * n;
-    let schur = Schur::try_new(work, f64::EPSILON, cap).ok_or(NumError::NoConvergence {
-        what: "Schur decomposition".into(),
-        iterations: cap,
-    })?;
-    let mut values: Vec<Complex<f64>> = schur
-        .complex_eigenvalues()
-        .iter()
-        .map(|z| z * scale)
-        .collect();
+    let scale = 2f64.powi(amax.log2().floor() as i32);
+    let work = m / scale;
+    let mut values: Vec<Complex<f64>> =
+        crate::numeric::linalg::dense::schur_eigenvalues(&work, true)?
+            .iter()
+            .map(|z| z * scale)
+            .collect();
     order::sort_eigenvalues(&mut values);
     Ok(values)
 }
@@ -284,6 +289,26 @@ mod tests {
             .filter(|&&x| x > 30.0 * f64::EPSILON * s[0])
             .count();
         assert!(rank < n, "numerical rank {rank}");
+    }
+
+    #[test]
+    fn units_of_a_state_do_not_decide_controllability() {
+        // A = diag(−1, −2), B = [1; δ]: for δ ≠ 0 the scaling x₂ = δ·z₂ (a similarity) gives
+        // B = [1; 1] with distinct eigenvalues, controllable by the PBH test (Hautus 1969)
+        // whatever δ is; δ = 0 leaves the mode −2 uncontrollable.
+        let a = DMatrix::from_row_slice(2, 2, &[-1.0, 0.0, 0.0, -2.0]);
+        for d in [1e-12, 1e-6, 1.0, 1e6, 1e12] {
+            let b = DMatrix::from_column_slice(2, 1, &[1.0, d]);
+            assert!(is_controllable(&a, &b, None).unwrap(), "δ = {d}");
+            assert!(uncontrollable_modes(&a, &b, None).unwrap().is_empty());
+            assert!(is_observable(&a, &b.transpose(), None).unwrap(), "δ = {d}");
+        }
+        let b = DMatrix::from_column_slice(2, 1, &[1.0, 0.0]);
+        assert!(!is_controllable(&a, &b, None).unwrap());
+        assert_eq!(
+            uncontrollable_modes(&a, &b, None).unwrap(),
+            vec![Complex::new(-2.0, 0.0)]
+        );
     }
 
     #[test]
