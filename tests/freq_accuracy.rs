@@ -27,7 +27,10 @@ fn horner(c: &[f64], s: C64) -> C64 {
 fn cancellation(sys: &StateSpace, s: C64) -> f64 {
     let n = sys.order();
     let m = DMatrix::<C64>::identity(n, n) * s - sys.a.map(|v| C64::new(v, 0.0));
-    let x = m.lu().solve(&sys.b.map(|v| C64::new(v, 0.0))).unwrap();
+    let x = m
+        .lu()
+        .solve(&sys.b.map(|v| C64::new(v, 0.0)))
+        .expect("dense solve");
     let sum: f64 = (0..n).map(|i| (sys.c[(0, i)] * x[(i, 0)]).norm()).sum();
     let g: C64 = (0..n).map(|i| x[(i, 0)] * sys.c[(0, i)]).sum::<C64>() + sys.d[(0, 0)];
     (sum + sys.d[(0, 0)].abs()) / g.norm()
@@ -60,9 +63,9 @@ fn cases() -> Vec<(Vec<f64>, Vec<f64>)> {
 #[test]
 fn dc_gain_of_a_realized_transfer_function() {
     for (num, den) in cases() {
-        let tf = TransferFunction::new(&num, &den, 0.0).unwrap();
-        let sys = from_transfer_function(&tf).unwrap();
-        let ev = FrequencyEvaluator::new(&sys).unwrap();
+        let tf = TransferFunction::new(&num, &den, 0.0).unwrap_or_else(|e| panic!("{e}"));
+        let sys = from_transfer_function(&tf).unwrap_or_else(|e| panic!("{e}"));
+        let ev = FrequencyEvaluator::new(&sys).unwrap_or_else(|e| panic!("{e}"));
         let g = ev.at_frequency(0.0)[(0, 0)];
         let want = num[num.len() - 1] / den[den.len() - 1];
         let e = rel(g, C64::new(want, 0.0));
@@ -77,9 +80,9 @@ fn dc_gain_of_a_realized_transfer_function() {
 fn transfer_function_closed_form() {
     let mut worst = 0.0f64;
     for (num, den) in cases() {
-        let tf = TransferFunction::new(&num, &den, 0.0).unwrap();
-        let sys = from_transfer_function(&tf).unwrap();
-        let ev = FrequencyEvaluator::new(&sys).unwrap();
+        let tf = TransferFunction::new(&num, &den, 0.0).unwrap_or_else(|e| panic!("{e}"));
+        let sys = from_transfer_function(&tf).unwrap_or_else(|e| panic!("{e}"));
+        let ev = FrequencyEvaluator::new(&sys).unwrap_or_else(|e| panic!("{e}"));
         for k in 0..=121 {
             // ω = 2 rad/s (the notches) last.
             let w = if k == 121 {
@@ -121,7 +124,8 @@ fn scaled_copies_against_dense_solves() {
             let b = DMatrix::from_fn(n, 2, |_, _| lcg(&mut seed));
             let c = DMatrix::from_fn(2, n, |_, _| lcg(&mut seed));
             let d = DMatrix::from_fn(2, 2, |_, _| lcg(&mut seed));
-            let sys = StateSpace::new(a.clone(), b.clone(), c.clone(), d.clone(), 0.0).unwrap();
+            let sys = StateSpace::new(a.clone(), b.clone(), c.clone(), d.clone(), 0.0)
+                .unwrap_or_else(|e| panic!("{e}"));
             // States rescaled by 2^k, k from −20 to 20 (exact: powers of two).
             let t: Vec<f64> = (0..n)
                 .map(|i| 2f64.powi(-20 + (40 * i / (n - 1).max(1)) as i32))
@@ -133,9 +137,9 @@ fn scaled_copies_against_dense_solves() {
                 d,
                 0.0,
             )
-            .unwrap();
+            .unwrap_or_else(|e| panic!("{e}"));
             for copy in [&sys, &scaled] {
-                let ev = FrequencyEvaluator::new(copy).unwrap();
+                let ev = FrequencyEvaluator::new(copy).unwrap_or_else(|e| panic!("{e}"));
                 for k in 0..=40 {
                     let w = if k == 0 {
                         0.0
@@ -143,7 +147,7 @@ fn scaled_copies_against_dense_solves() {
                         10f64.powf(-3.0 + 6.0 * k as f64 / 40.0)
                     };
                     let s = point_of(w, 0.0);
-                    let want = dense_point(&sys, s).unwrap();
+                    let want = dense_point(&sys, s).expect("dense solve");
                     let got = ev.at_point(s);
                     let e = (&got - &want).norm() / want.norm();
                     worst = worst.max(e);
