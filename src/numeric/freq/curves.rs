@@ -80,7 +80,7 @@ pub fn channel_curves(sys: &StateSpace, grid: &[f64]) -> NumResult<Vec<ChannelCu
             let samples = siso_sweep(&ev, grid, &params);
             let frequency: Vec<f64> = samples.iter().map(|s| s.w).collect();
             let value: Vec<C64> = samples.iter().map(|s| s.value).collect();
-            let magnitude_db = value
+            let magnitude_db: Vec<f64> = value
                 .iter()
                 .map(|z| {
                     let a = z.norm();
@@ -91,10 +91,11 @@ pub fn channel_curves(sys: &StateSpace, grid: &[f64]) -> NumResult<Vec<ChannelCu
                     }
                 })
                 .collect();
-            let phase_deg = unwrap_phase(&value)
+            let mut phase_deg: Vec<f64> = unwrap_phase(&value)
                 .into_iter()
                 .map(f64::to_degrees)
                 .collect();
+            anchor_low_frequency(&frequency, &magnitude_db, &mut phase_deg);
             out.push(ChannelCurve {
                 output: i,
                 input: j,
@@ -106,6 +107,34 @@ pub fn channel_curves(sys: &StateSpace, grid: &[f64]) -> NumResult<Vec<ChannelCu
         }
     }
     Ok(out)
+}
+
+/// Shifts an unwrapped phase curve by a multiple of 360° so that it starts on the
+/// low-frequency asymptote: below every nonzero pole and zero G(jω) ≈ K·(jω)^k, k the
+/// number of zeros minus poles at the origin, whose phase is k·90° (K > 0) or
+/// k·90° − 180° (K < 0). k is read off the slope of the first two magnitude samples
+/// (20·k dB per decade); of the 360°-shifts of the first phase, the one closest to
+/// k·90° − 90° (midway between the two cases) is kept. Without this a double integrator's
+/// principal angle +180° made 1/(s²(s + 1)) start at +180° instead of −180°.
+fn anchor_low_frequency(w: &[f64], mag_db: &[f64], phase_deg: &mut [f64]) {
+    let usable: Vec<usize> = (0..w.len())
+        .filter(|&k| w[k] > 0.0 && mag_db[k].is_finite() && phase_deg[k].is_finite())
+        .take(2)
+        .collect();
+    let [k0, k1] = usable[..] else {
+        return;
+    };
+    let decades = (w[k1] / w[k0]).log10();
+    if decades <= 0.0 {
+        return;
+    }
+    let k = ((mag_db[k1] - mag_db[k0]) / (20.0 * decades)).round();
+    let target = 90.0 * k - 90.0;
+    let first = phase_deg[k0];
+    let shift = 360.0 * ((target - first) / 360.0).round();
+    if shift != 0.0 {
+        phase_deg.iter_mut().for_each(|p| *p += shift);
+    }
 }
 
 /// The phase of each value in radians, unwrapped continuously: the first usable value
@@ -214,6 +243,27 @@ mod tests {
     use super::*;
     use crate::numeric::testing::siso;
     use nalgebra::DMatrix;
+
+    #[test]
+    fn double_integrator_phase_starts_at_minus_180() {
+        // 1/(s²(s + 1)): G(jω) ≈ −1/ω² at low frequency, so the phase starts at −180° and
+        // falls to −270° (closed form: −180° − atan ω). Main started it at +180°.
+        let sys = crate::numeric::testing::siso(
+            &[0.0, 1.0, 0.0, 0.0, 0.0, 1.0, 0.0, 0.0, -1.0],
+            &[0.0, 0.0, 1.0],
+            &[1.0, 0.0, 0.0],
+            0.0,
+        );
+        let grid = common_grid(&[&sys]).unwrap();
+        let c = &channel_curves(&sys, &grid).unwrap()[0];
+        for (w, p) in c.frequency.iter().zip(&c.phase_deg) {
+            let want = -180.0 - w.atan().to_degrees();
+            assert!(
+                (p - want).abs() < 1e-6,
+                "phase {p} at ω = {w}, expected {want}"
+            );
+        }
+    }
 
     #[test]
     fn third_order_lag_phase_unwraps_to_minus_270() {

@@ -297,6 +297,9 @@ fn metrics_map(m: &StepMetrics, pair: Option<(usize, usize)>) -> Map {
     ] {
         out.insert(k.into(), Dynamic::from_float(v));
     }
+    if let Some(note) = m.note {
+        out.insert("note".into(), note.into());
+    }
     out
 }
 
@@ -307,7 +310,7 @@ fn response_metrics(r: &Response, input: usize, many: bool) -> Rr<Vec<Map>> {
     for i in 0..d.y.ncols() {
         let y: Vec<f64> = d.y.column(i).iter().copied().collect();
         let last = y.last().copied().unwrap_or(f64::NAN);
-        let m = metrics::step_metrics_of(&d.t, &y, last).map_err(num(f))?;
+        let m = metrics::step_metrics_of(&d.t, &y, last, r.dt == 0.0).map_err(num(f))?;
         out.push(metrics_map(
             &m,
             (many || d.y.ncols() > 1).then_some((i, input)),
