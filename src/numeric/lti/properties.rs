@@ -140,6 +140,10 @@ pub fn dc_gain(sys: &StateSpace) -> NumResult<DMatrix<f64>> {
 /// Solves M X = B unless M is numerically singular (reciprocal condition below n·ε).
 fn well_conditioned_solve(m: &DMatrix<f64>, b: &DMatrix<f64>) -> Option<DMatrix<f64>> {
     let n = m.nrows();
+    if n == 0 {
+        // No states: x is empty (nalgebra's SVD panics on an empty matrix).
+        return Some(DMatrix::zeros(0, b.ncols()));
+    }
     let sv = m.clone().singular_values();
     let smax = sv.iter().cloned().fold(0.0, f64::max);
     let smin = sv.iter().cloned().fold(f64::INFINITY, f64::min);
