@@ -20,15 +20,12 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     super::syntax::install(&mut e);
     e.set_max_operations(limits.operations);
     e.set_max_call_levels(limits.call_depth);
-    // The engine's own size limits walk a whole array or map after every change to it
-    // (quadratic growth: 300 000 `push`es took 24 s). At the defaults the memory budget
-    // bounds what they bounded, so they are off; a limit lowered on purpose still applies.
-    let defaults = crate::sandbox::Limits::default();
-    if limits.string_size != defaults.string_size || limits.array_size != defaults.array_size {
-        e.set_max_string_size(limits.string_size);
-        e.set_max_array_size(limits.array_size);
-        e.set_max_map_size(limits.array_size);
-    }
+    // The engine's size limits stay on: they are one switch with its walk over a whole
+    // array or map after each change (quadratic growth), and without them a doubling
+    // string only stops at the memory budget, after copying gigabytes.
+    e.set_max_string_size(limits.string_size);
+    e.set_max_array_size(limits.array_size);
+    e.set_max_map_size(limits.array_size);
     e.set_max_expr_depths(256, 256);
     e.set_default_tag(Dynamic::from(StateHandle(state.clone())));
 
