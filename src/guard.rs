@@ -68,6 +68,26 @@ pub fn install_panic_hook() {
     }));
 }
 
+/// Runs `f` on this thread under `catch_unwind`, marked as guarded (the panic hook then
+/// keeps quiet instead of ending the process). Returns the panic's description when it
+/// panicked. Sweep workers run each case through this.
+pub fn catch<R>(f: impl FnOnce() -> R) -> Result<R, String> {
+    let was = GUARDED.with(|g| g.replace(true));
+    let r = std::panic::catch_unwind(std::panic::AssertUnwindSafe(f));
+    GUARDED.with(|g| g.set(was));
+    r.map_err(|payload| {
+        LAST_PANIC
+            .with(|p| p.borrow_mut().take())
+            .unwrap_or_else(|| {
+                payload
+                    .downcast_ref::<String>()
+                    .cloned()
+                    .or_else(|| payload.downcast_ref::<&str>().map(|s| s.to_string()))
+                    .unwrap_or_else(|| "unknown".into())
+            })
+    })
+}
+
 /// Runs `f` on a fresh thread with a stack of `stack_bytes`, catching panics. Returns the
 /// panic's description when it panicked.
 pub fn run<R: Send>(stack_bytes: usize, f: impl FnOnce() -> R + Send) -> Result<R, String> {
@@ -75,22 +95,7 @@ pub fn run<R: Send>(stack_bytes: usize, f: impl FnOnce() -> R + Send) -> Result<
         let worker = std::thread::Builder::new()
             .name("statebook-eval".into())
             .stack_size(stack_bytes)
-            .spawn_scoped(s, || {
-                GUARDED.with(|g| g.set(true));
-                let r = std::panic::catch_unwind(std::panic::AssertUnwindSafe(f));
-                GUARDED.with(|g| g.set(false));
-                r.map_err(|payload| {
-                    LAST_PANIC
-                        .with(|p| p.borrow_mut().take())
-                        .unwrap_or_else(|| {
-                            payload
-                                .downcast_ref::<String>()
-                                .cloned()
-                                .or_else(|| payload.downcast_ref::<&str>().map(|s| s.to_string()))
-                                .unwrap_or_else(|| "unknown".into())
-                        })
-                })
-            });
+            .spawn_scoped(s, || catch(f));
         match worker {
             Ok(handle) => handle
                 .join()

@@ -6,6 +6,7 @@
 //! [`numeric`] (pure numerics) → values → [`display`] / [`report`] / [`plot`].
 #![deny(missing_docs)]
 
+pub mod budget;
 pub mod display;
 pub mod guard;
 pub mod notebook;
@@ -65,7 +66,9 @@ impl Drop for Session {
     fn drop(&mut self) {
         let scope = std::mem::take(&mut self.scope);
         let stack = guard::stack_for(self.state.limits.call_depth);
-        let _ = guard::run(stack, move || drop(scope));
+        let _ = guard::run(stack, move || {
+            script::nesting::drop_flat(scope.into_iter().map(|(_, v, _)| v))
+        });
     }
 }
 
@@ -79,6 +82,7 @@ impl Session {
         for d in &options.allow_write {
             sb.allow_write(d);
         }
+        budget::set_budget(options.limits.memory_bytes);
         let state = Arc::new(SessionState::new(sb, options.limits.clone()));
         let deadline = (options.limits.timeout_seconds > 0.0)
             .then(|| Instant::now() + Duration::from_secs_f64(options.limits.timeout_seconds));
@@ -138,7 +142,7 @@ impl Session {
             .engine
             .compile_with_scope(&self.scope, code)
             .map_err(|e| ScriptError::from_parse(&e))?;
-        self.keep_imports(code);
+        self.keep_imports(&ast);
         let merged = self.lib.merge(&ast);
         self.state.sweep.set_library(&merged);
         let result = self
@@ -198,20 +202,24 @@ impl Session {
 
     /// `import "name" as alias;` is scoped to one evaluation by the engine; registering
     /// the module under its alias keeps it available to later cells and REPL lines.
-    fn keep_imports(&mut self, code: &str) {
-        for line in code.lines() {
-            let t = line.trim();
-            let Some(rest) = t.strip_prefix("import ") else {
-                continue;
-            };
-            let Some((path, alias)) = rest.split_once(" as ") else {
-                continue;
-            };
-            let path = path.trim().trim_matches('"');
-            let alias = alias.trim().trim_end_matches(';').trim();
-            if path.is_empty() || alias.is_empty() {
-                continue;
-            }
+    /// The imports are the parsed script's top-level `import` statements (text inside a
+    /// comment or a string is no import).
+    fn keep_imports(&mut self, ast: &AST) {
+        let imports: Vec<(String, String)> = ast
+            .statements()
+            .iter()
+            .filter_map(|s| match s {
+                rhai::Stmt::Import(b, _) => match &b.0 {
+                    rhai::Expr::StringConstant(path, _) if !b.1.name.is_empty() => {
+                        Some((path.to_string(), b.1.name.to_string()))
+                    }
+                    _ => None,
+                },
+                _ => None,
+            })
+            .collect();
+        for (path, alias) in imports {
+            let (path, alias) = (path.as_str(), alias.as_str());
             if let Ok(m) = self.engine.module_resolver().resolve(
                 &self.engine,
                 None,

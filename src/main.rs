@@ -120,6 +120,10 @@ struct Common {
     /// Stop the run after this many seconds of wall-clock time.
     #[arg(long, value_name = "SECONDS", global = true)]
     timeout: Option<f64>,
+    /// Memory budget of the whole run: bytes, or with a K, M or G suffix (e.g. 2G).
+    /// Default: half of physical memory, at most 16G.
+    #[arg(long, value_name = "SIZE", global = true, value_parser = statebook::budget::parse_size)]
+    max_memory: Option<usize>,
 }
 
 impl Common {
@@ -143,6 +147,9 @@ impl Common {
         if let Some(v) = self.timeout {
             limits.timeout_seconds = v.max(0.0);
         }
+        if let Some(v) = self.max_memory {
+            limits.memory_bytes = v;
+        }
         SessionOptions {
             root: root.to_path_buf(),
             allow_read: self.allow_read.clone(),
@@ -162,6 +169,14 @@ fn folder_of(file: &Path) -> PathBuf {
 fn main() -> ExitCode {
     statebook::guard::install_panic_hook();
     let cli = Cli::parse();
+    if let (Some(t), Some(_)) = (cli.common.timeout, &cli.command) {
+        statebook::budget::start_watchdog(t);
+    }
+    statebook::budget::set_budget(
+        cli.common
+            .max_memory
+            .unwrap_or_else(statebook::budget::default_budget),
+    );
     // Everything runs on a thread with a large stack, so deep (but limited) recursion in
     // scripts, nested data and their display never reach the end of the native stack.
     let worker = std::thread::Builder::new()
@@ -300,7 +315,7 @@ fn cmd_run(file: &Path, shard: Option<Shard>, sweep_results: Option<&Path>, comm
 fn cmd_merge(parts: &[PathBuf], output: &Path) -> u8 {
     let mut texts = Vec::with_capacity(parts.len());
     for p in parts {
-        match std::fs::read_to_string(p) {
+        match statebook::budget::read_bounded(p) {
             Ok(t) => texts.push((p.display().to_string(), t)),
             Err(e) => {
                 eprintln!("error: cannot read {}: {e}", p.display());

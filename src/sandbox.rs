@@ -43,6 +43,8 @@ pub struct Limits {
     pub matrix_entries: usize,
     /// Wall-clock limit for a whole run, in seconds (0 = none).
     pub timeout_seconds: f64,
+    /// Memory budget of the process, in bytes (see `budget`).
+    pub memory_bytes: usize,
 }
 
 impl Default for Limits {
@@ -54,6 +56,7 @@ impl Default for Limits {
             array_size: 10_000_000,
             matrix_entries: 25_000_000,
             timeout_seconds: 0.0,
+            memory_bytes: crate::budget::default_budget(),
         }
     }
 }
@@ -86,7 +89,7 @@ impl Limits {
     pub fn check_matrix(what: &str, rows: usize, cols: usize) -> Result<(), String> {
         let (limit, _) = Limits::active();
         match rows.checked_mul(cols) {
-            Some(n) if n <= limit => Ok(()),
+            Some(n) if n <= limit => crate::budget::reserve(what, n.saturating_mul(8)),
             _ => Err(format!(
                 "{what}: a {rows}×{cols} matrix exceeds the size limit of {limit} entries\nhint: \
                  raise it with --max-matrix-entries if you really mean it"

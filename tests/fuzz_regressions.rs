@@ -18,6 +18,7 @@ fn fuzz_limits() -> Limits {
         array_size: 10_000,
         matrix_entries: 40_000,
         timeout_seconds: 0.5,
+        memory_bytes: 1 << 30,
     }
 }
 

@@ -25,12 +25,13 @@ fn registered() -> BTreeSet<String> {
 }
 
 /// Operators and engine plumbing: documented on the operator pages where they differ from
-/// ordinary arithmetic (`^`, `%`), not one page per symbol.
+/// ordinary arithmetic (`^`, `%`), not one page per symbol; and `sleep`, registered only
+/// to refuse the core package's version in an analysis.
 fn exempt(name: &str) -> bool {
     name.chars().all(|c| "+-*/<>=!&|".contains(c))
         || matches!(
             name,
-            "to_string" | "to_debug" | "debug" | "index$get$" | "index$set$"
+            "to_string" | "to_debug" | "debug" | "index$get$" | "index$set$" | "sleep"
         )
 }
 

@@ -26,6 +26,7 @@ fuzz_target!(|data: &[u8]| {
             array_size: 10_000,
             matrix_entries: 40_000,
             timeout_seconds: 0.5,
+            memory_bytes: 1 << 30,
         },
         ..SessionOptions::default()
     };

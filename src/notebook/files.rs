@@ -10,8 +10,12 @@ pub const MAX_FILE_BYTES: u64 = 16 * 1024 * 1024;
 /// Reads an analysis file: refuses missing, empty, enormous and non-UTF-8 files with a
 /// clear message. Returns the text and its bytes' SHA-256.
 pub fn read_analysis(path: &Path) -> Result<(String, String), String> {
-    let meta = std::fs::metadata(path)
-        .map_err(|e| format!("cannot read {}: {}", path.display(), io_words(&e)))?;
+    use std::io::Read;
+    // The size is taken from the opened handle (a symlink to a device reads as size 0 by
+    // path), and the read is bounded, so nothing can make it read more than the limit.
+    let cannot = |e: std::io::Error| format!("cannot read {}: {}", path.display(), io_words(&e));
+    let file = std::fs::File::open(path).map_err(cannot)?;
+    let meta = file.metadata().map_err(cannot)?;
     if meta.is_dir() {
         return Err(format!(
             "{} is a folder, expected an analysis file",
@@ -26,8 +30,23 @@ pub fn read_analysis(path: &Path) -> Result<(String, String), String> {
             MAX_FILE_BYTES
         ));
     }
-    let bytes = std::fs::read(path)
-        .map_err(|e| format!("cannot read {}: {}", path.display(), io_words(&e)))?;
+    if !meta.is_file() {
+        return Err(format!(
+            "{} is not a regular file (a device, pipe or socket), expected an analysis file",
+            path.display()
+        ));
+    }
+    let mut bytes = Vec::new();
+    file.take(MAX_FILE_BYTES + 1)
+        .read_to_end(&mut bytes)
+        .map_err(cannot)?;
+    if bytes.len() as u64 > MAX_FILE_BYTES {
+        return Err(format!(
+            "{} grew past the {} bytes an analysis file may have while it was read",
+            path.display(),
+            MAX_FILE_BYTES
+        ));
+    }
     let sha = hex(&Sha256::digest(&bytes));
     let text = String::from_utf8(bytes).map_err(|e| {
         format!(

@@ -148,6 +148,16 @@ pub fn merge(parts: &[(String, String)]) -> Result<String, String> {
         .collect::<Result<_, _>>()?;
     let first = &shards[0];
     let n = first.shard.count;
+    // Validated before anything is sized by it: a shard file may claim any count.
+    // (Up to 1024 the missing ones are listed below, one by one.)
+    if n > parts.len() && n > 1024 {
+        return Err(format!(
+            "{first_name} is one of {n} shards, but {} shard file{} given: merge needs all \
+             {n}, each once",
+            parts.len(),
+            if parts.len() == 1 { " was" } else { "s were" }
+        ));
+    }
     let mut owner: Vec<Option<&str>> = vec![None; n];
     for ((name, _), s) in parts.iter().zip(&shards) {
         if s.file_sha256 != first.file_sha256 {
@@ -203,8 +213,14 @@ pub fn merge(parts: &[(String, String)]) -> Result<String, String> {
     }
     let mut merged: Vec<SweepLog> = Vec::with_capacity(first.sweeps.len());
     for (j, base) in first.sweeps.iter().enumerate() {
+        // Capacity from the cases the shards hold, never from the count a file claims.
+        let held: usize = shards
+            .iter()
+            .filter_map(|s| s.sweeps.get(j))
+            .map(|sw| sw.cases.len())
+            .sum();
         let mut log = SweepLog {
-            cases: Vec::with_capacity(base.case_count),
+            cases: Vec::with_capacity(held.min(base.case_count)),
             ..base.clone()
         };
         for ((name, _), s) in parts.iter().zip(&shards) {

@@ -20,6 +20,9 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     super::syntax::install(&mut e);
     e.set_max_operations(limits.operations);
     e.set_max_call_levels(limits.call_depth);
+    // The engine's size limits stay on: they are one switch with its walk over a whole
+    // array or map after each change (quadratic growth), and without them a doubling
+    // string only stops at the memory budget, after copying gigabytes.
     e.set_max_string_size(limits.string_size);
     e.set_max_array_size(limits.array_size);
     e.set_max_map_size(limits.array_size);
@@ -31,17 +34,32 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     let s = state.clone();
     e.on_debug(move |t, _, _| s.push(Output::Text(t.to_string())));
     let s = state.clone();
+    let timeout = limits.timeout_seconds;
+    let operations = limits.operations;
     e.on_progress(move |ops| {
         s.operations.store(ops, Ordering::Relaxed);
-        match deadline {
-            Some(deadline) if ops % 4096 == 0 && Instant::now() >= deadline => {
-                Some(Dynamic::from("the run exceeded its --timeout".to_string()))
-            }
-            _ => None,
+        // Every operation: two relaxed atomic loads (cancellation by the watchdog, bytes
+        // allocated); the clock every 256 operations.
+        let late = crate::budget::cancelled()
+            || (ops % 256 == 0 && deadline.is_some_and(|d| Instant::now() >= d));
+        if late {
+            return Some(Dynamic::from(crate::budget::timeout_message(timeout)));
         }
+        if let Err(m) = crate::budget::check("") {
+            return Some(Dynamic::from(m));
+        }
+        // The cases of a sweep share one operation budget (counted in batches of 1024).
+        if ops % 1024 == 0 && s.sweep.count_shared_operations(1024) > operations {
+            return Some(Dynamic::from(format!(
+                "the sweep's cases together exceeded the operation limit of {operations}\nhint: \
+                 raise it with --max-operations if the sweep really needs more"
+            )));
+        }
+        None
     });
     e.set_module_resolver(SandboxResolver {
         state: state.clone(),
+        active: Default::default(),
     });
 
     builtins::arith::register(&mut e);
@@ -61,6 +79,16 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     register_display(&mut e, state);
     super::nesting::register(&mut e);
     super::stdlib::load(&mut e);
+    // The core package's `sleep` has no place in a sandboxed analysis: it holds a run
+    // past any deadline (and panicked on sleep(1e300)). Registered functions take
+    // precedence over the package's.
+    let refuse = || -> Result<(), Box<EvalAltResult>> {
+        Err(super::convert::fail(
+            "sleep is not available in an analysis (it would only hold up the run)",
+        ))
+    };
+    e.register_fn("sleep", move |_: rhai::INT| refuse());
+    e.register_fn("sleep", move |_: rhai::FLOAT| refuse());
     e
 }
 
@@ -89,6 +117,21 @@ fn register_display(e: &mut Engine, state: &Arc<SessionState>) {
 /// Resolves `import "name" as m;` to `name.sbook` inside the sandbox.
 struct SandboxResolver {
     state: Arc<SessionState>,
+    /// The files being imported right now, outermost first (a cycle or a chain deeper
+    /// than [`MAX_IMPORT_DEPTH`] is refused: each nested import starts a fresh engine
+    /// state, so no call-depth limit bounds it and the native stack would overflow).
+    active: std::sync::Mutex<Vec<String>>,
+}
+
+/// Deepest chain of nested imports.
+pub const MAX_IMPORT_DEPTH: usize = 16;
+
+fn in_module(path: &str, message: String, pos: Position) -> Box<EvalAltResult> {
+    Box::new(EvalAltResult::ErrorInModule(
+        path.to_string(),
+        super::convert::fail(message),
+        pos,
+    ))
 }
 
 impl ModuleResolver for SandboxResolver {
@@ -111,13 +154,46 @@ impl ModuleResolver for SandboxResolver {
                 pos,
             ))
         })?;
-        let text = std::fs::read_to_string(&real).map_err(|err| {
-            Box::new(EvalAltResult::ErrorInModule(
-                path.to_string(),
-                super::convert::fail(format!("import: cannot read {file}: {err}")),
-                pos,
-            ))
-        })?;
+        let key = real.display().to_string();
+        {
+            let mut active = self.active.lock().unwrap_or_else(|p| p.into_inner());
+            if active.contains(&key) {
+                let chain: Vec<&str> = active.iter().map(String::as_str).collect();
+                return Err(in_module(
+                    path,
+                    format!(
+                        "import: {file} imports itself (cycle: {} → {key})",
+                        chain.join(" → ")
+                    ),
+                    pos,
+                ));
+            }
+            if active.len() >= MAX_IMPORT_DEPTH {
+                return Err(in_module(
+                    path,
+                    format!("import: imports nested more than {MAX_IMPORT_DEPTH} deep"),
+                    pos,
+                ));
+            }
+            active.push(key);
+        }
+        let r = self.load(engine, path, &file, &real, pos);
+        self.active.lock().unwrap_or_else(|p| p.into_inner()).pop();
+        r
+    }
+}
+
+impl SandboxResolver {
+    fn load(
+        &self,
+        engine: &Engine,
+        path: &str,
+        file: &str,
+        real: &std::path::Path,
+        pos: Position,
+    ) -> Result<Shared<Module>, Box<EvalAltResult>> {
+        let text = crate::budget::read_bounded(real)
+            .map_err(|err| in_module(path, format!("import: cannot read {file}: {err}"), pos))?;
         let mut ast = engine.compile(&text).map_err(|err| {
             Box::new(EvalAltResult::ErrorInModule(
                 path.to_string(),
@@ -125,7 +201,7 @@ impl ModuleResolver for SandboxResolver {
                 pos,
             ))
         })?;
-        ast.set_source(file.as_str());
+        ast.set_source(file);
         let m = Module::eval_ast_as_new(rhai::Scope::new(), &ast, engine)
             .map_err(|err| Box::new(EvalAltResult::ErrorInModule(path.to_string(), err, pos)))?;
         Ok(m.into())

@@ -137,3 +137,35 @@ pub fn register(e: &mut Engine) {
         maps_equal(&ctx, a, b).map(|q| !q)
     });
 }
+
+/// Drops values without recursing once per level of nesting: arrays, maps, closures'
+/// captured values and shared cells are taken apart onto a work list first. Dropping
+/// 300 000 closures that each capture the previous one recursed through every level and
+/// overflowed the stack.
+pub fn drop_flat(values: impl IntoIterator<Item = Dynamic>) {
+    let mut work: Vec<Dynamic> = values.into_iter().collect();
+    // A shared cell held only here gives up its value; one still held elsewhere gives a
+    // shallow copy (the engine offers no reference count), so data shared many times
+    // could be visited many times: past this many values the rest drop as usual.
+    let mut visits: usize = 0;
+    while let Some(v) = work.pop() {
+        visits += 1;
+        if visits > 20_000_000 {
+            break;
+        }
+        let v = v.flatten();
+        if v.is_fnptr() {
+            if let Some(mut f) = v.try_cast::<rhai::FnPtr>() {
+                work.extend(f.iter_curry_mut().map(std::mem::take));
+            }
+        } else if v.is_array() {
+            if let Ok(a) = v.into_array() {
+                work.extend(a);
+            }
+        } else if v.is_map() {
+            if let Some(m) = v.try_cast::<Map>() {
+                work.extend(m.into_values());
+            }
+        }
+    }
+}

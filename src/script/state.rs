@@ -128,7 +128,8 @@ pub fn read_text(
         .sandbox
         .read_path(path)
         .map_err(|e| fail(format!("{fname}: {e}")))?;
-    std::fs::read_to_string(&real).map_err(|e| fail(format!("{fname}: cannot read {path}: {e}")))
+    crate::budget::read_bounded(&real)
+        .map_err(|e| fail(format!("{fname}: cannot read {path}: {e}")))
 }
 
 /// Writes a file for built-in `fname`, judged by the session's sandbox, through a

@@ -191,6 +191,14 @@ fn thin_svd(
     a: &DMatrix<f64>,
     vectors: bool,
 ) -> NumResult<nalgebra::SVD<f64, nalgebra::Dyn, nalgebra::Dyn>> {
+    if a.is_empty() {
+        // nalgebra panics on an empty matrix; its thin SVD has no singular values.
+        return Ok(nalgebra::SVD {
+            u: vectors.then(|| DMatrix::zeros(a.nrows(), 0)),
+            v_t: vectors.then(|| DMatrix::zeros(0, a.ncols())),
+            singular_values: nalgebra::DVector::zeros(0),
+        });
+    }
     let e = scale_exponent(a);
     let scaled = a.map(|v| times_pow2(v, -e));
     let cap = svd_iteration_cap(a.nrows(), a.ncols());

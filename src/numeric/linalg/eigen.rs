@@ -154,14 +154,23 @@ impl Prepared {
         // balancing loop from overflowing or underflowing.
         let mut scale = 1.0;
         if amax > 0.0 && !(2f64.powi(-400)..=2f64.powi(400)).contains(&amax) {
+            // Two factors each way: a single 2^−e is infinite for subnormal entries
+            // (|a| < 2^−1022 gives e ≤ −1023) and 2^e may be subnormal itself.
             let e = amax.log2().floor() as i32;
-            scale = 2f64.powi(e);
-            balanced *= 2f64.powi(-e);
+            scale = crate::numeric::linalg::dense::times_pow2(1.0, e);
+            let (f1, f2) = crate::numeric::linalg::dense::pow2_factors(-e);
+            balanced *= f1;
+            balanced *= f2;
         }
+        check::finite("A (prescaled)", &balanced)?;
+        // Our bounded Parlett–Reinsch sweep (a fixed number of sweeps, non-finite norms
+        // skipped): nalgebra's loops until convergence, forever on infinite entries.
         let balance = if n == 0 {
             DVector::zeros(0)
         } else {
-            nalgebra::linalg::balancing::balance_parlett_reinsch(&mut balanced)
+            DVector::from_vec(crate::numeric::linalg::kernels::balance_in_place(
+                &mut balanced,
+            ))
         };
         check::finite("A (balanced)", &balanced)?;
         if balance.iter().any(|d| !d.is_finite() || *d <= 0.0) {

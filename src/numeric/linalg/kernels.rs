@@ -245,21 +245,26 @@ pub(crate) fn balance_in_place(a: &mut DMatrix<f64>) -> Vec<f64> {
         for i in 0..n {
             let s = col[i] + row[i];
             let (mut c, mut r) = (col[i].sqrt(), row[i].sqrt());
-            if c == 0.0 || r == 0.0 {
+            // Non-finite norms (overflowed squares) would make the loops below endless.
+            if c == 0.0 || r == 0.0 || !(c.is_finite() && r.is_finite()) {
                 continue;
             }
             let mut f = 1.0f64;
-            while c < r / 2.0 {
+            // Each step moves c/r by a factor 4; 2200 steps span every finite ratio.
+            let mut steps = 0;
+            while c < r / 2.0 && steps < 2200 {
+                steps += 1;
                 c *= 2.0;
                 r /= 2.0;
                 f *= 2.0;
             }
-            while c >= r * 2.0 {
+            while c >= r * 2.0 && steps < 4400 {
+                steps += 1;
                 c /= 2.0;
                 r *= 2.0;
                 f /= 2.0;
             }
-            if c * c + r * r >= 0.95 * s {
+            if c * c + r * r >= 0.95 * s || !(f.is_finite() && f > 0.0 && (f * f).is_finite()) {
                 continue;
             }
             converged = false;

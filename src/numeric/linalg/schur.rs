@@ -485,10 +485,14 @@ fn francis_qr(
 fn scaled_into_safe_range(a: &DMatrix<f64>) -> (DMatrix<f64>, f64) {
     let amax = a.amax();
     let mut work = a.clone();
-    if amax > 0.0 && !(2f64.powi(-500)..=2f64.powi(500)).contains(&amax) {
+    if amax > 0.0 && amax.is_finite() && !(2f64.powi(-500)..=2f64.powi(500)).contains(&amax) {
+        // In two factors each: 2^±e alone over- or underflows for subnormal or huge
+        // entries (2^1030 is infinite), and the undo factor 2^e may be subnormal itself.
         let e = amax.log2().floor() as i32;
-        work *= 2f64.powi(-e);
-        return (work, 2f64.powi(e));
+        let (f1, f2) = crate::numeric::linalg::dense::pow2_factors(-e);
+        work *= f1;
+        work *= f2;
+        return (work, crate::numeric::linalg::dense::times_pow2(1.0, e));
     }
     (work, 1.0)
 }

@@ -41,6 +41,17 @@ pub struct Modal {
     pub warnings: Vec<String>,
 }
 
+/// A model without states is its own modal and Jordan realization (empty transform).
+fn stateless(sys: &StateSpace) -> Modal {
+    Modal {
+        system: sys.clone(),
+        t: DMatrix::zeros(0, 0),
+        condition: 1.0,
+        blocks: Vec::new(),
+        warnings: Vec::new(),
+    }
+}
+
 fn block_eigenvalue(t: &DMatrix<f64>, s: usize, size: usize) -> Complex<f64> {
     if size == 1 {
         Complex::new(t[(s, s)], 0.0)
@@ -230,6 +241,9 @@ fn assemble(sys: &StateSpace, d: Decoupled, what: &str) -> NumResult<Modal> {
 /// cluster of repeated or nearly repeated eigenvalues stays one coupled block (with a
 /// warning). Cost O(n³) plus O(n) Schur reorderings.
 pub fn modal_realization(sys: &StateSpace) -> NumResult<Modal> {
+    if sys.order() == 0 {
+        return Ok(stateless(sys));
+    }
     let mut d = decouple(&sys.a)?;
     scale_blocks(&mut d);
     assemble(sys, d, "modal_realization")
@@ -242,6 +256,9 @@ pub fn modal_realization(sys: &StateSpace) -> NumResult<Modal> {
 /// is exactly the decision that makes the Jordan form fragile: an arbitrarily small
 /// perturbation can change it. Repeated complex pairs are refused.
 pub fn jordan_realization(sys: &StateSpace) -> NumResult<Modal> {
+    if sys.order() == 0 {
+        return Ok(stateless(sys));
+    }
     let mut d = decouple(&sys.a)?;
     // Chains are read off the Schur blocks as they are: the standard-form scaling of a
     // 2×2 block (scale_blocks, applied at the end) would shrink the coupling of a nearly

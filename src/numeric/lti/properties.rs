@@ -141,7 +141,8 @@ pub fn dc_gain(sys: &StateSpace) -> NumResult<DMatrix<f64>> {
 fn well_conditioned_solve(m: &DMatrix<f64>, b: &DMatrix<f64>) -> Option<DMatrix<f64>> {
     let n = m.nrows();
     if n == 0 {
-        // No states (a channel whose minimal realization is static): nothing to solve.
+        // No states (a static model or channel): x is empty, and nalgebra's SVD panics on
+        // an empty matrix.
         return Some(DMatrix::zeros(0, b.ncols()));
     }
     let sv = m.clone().singular_values();

@@ -200,10 +200,25 @@ fn tustin(sys: &StateSpace, dt: f64, prewarp: Option<f64>) -> NumResult<StateSpa
         }
     };
     let n = sys.order();
+    if n == 0 {
+        // A static gain maps to itself (nalgebra's LU panics on the empty I − A·T/2).
+        return StateSpace::new(
+            sys.a.clone(),
+            sys.b.clone(),
+            sys.c.clone(),
+            sys.d.clone(),
+            dt,
+        );
+    }
     let id = DMatrix::<f64>::identity(n, n);
     let m = &id - &sys.a * (t / 2.0);
     let p = &id + &sys.a * (t / 2.0);
-    let sv = m.clone().singular_values();
+    // nalgebra's SVD panics on an empty matrix; a model without states has none to check.
+    let sv = if n == 0 {
+        nalgebra::DVector::zeros(0)
+    } else {
+        m.clone().singular_values()
+    };
     let smax = sv.iter().cloned().fold(0.0, f64::max);
     let smin = sv.iter().cloned().fold(f64::INFINITY, f64::min);
     if n > 0 && smin <= n as f64 * f64::EPSILON * smax {

@@ -185,7 +185,7 @@ pub fn register(engine: &mut Engine) {
                 .sandbox
                 .read_path(&path)
                 .map_err(|e| fail(format!("read_csv: {e}")))?;
-            let text = std::fs::read_to_string(&real)
+            let text = crate::budget::read_bounded(&real)
                 .map_err(|e| fail(format!("read_csv: cannot read {path}: {e}")))?;
             let (_, m) = parse_csv(&text, &path).map_err(|e| fail(format!("read_csv: {e}")))?;
             let limit = st.limits.matrix_entries;

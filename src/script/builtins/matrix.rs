@@ -213,13 +213,18 @@ pub fn register(engine: &mut Engine) {
         },
     );
     engine.register_fn("diagonal", |v: Dynamic| -> Rr<Dynamic> {
+        // The main diagonal a_ii, i < min(rows, cols), of any rectangular matrix (nalgebra's
+        // `diagonal` panics unless the matrix is square; `[[]]` is 1×0 and has none).
+        let main = |m: &DMatrix<f64>| -> Vec<f64> {
+            (0..m.nrows().min(m.ncols())).map(|i| m[(i, i)]).collect()
+        };
         if let Some(m) = v.read_lock::<Matrix>() {
-            return Ok(Dynamic::from_array(float_array(m.0.diagonal().as_slice())));
+            return Ok(Dynamic::from_array(float_array(&main(&m.0))));
         }
         if let Some(a) = v.read_lock::<Array>() {
             if a.first().is_some_and(|r| r.is_array()) {
                 let m = to_matrix(&v, "diagonal", "A")?;
-                return Ok(Dynamic::from_array(float_array(m.diagonal().as_slice())));
+                return Ok(Dynamic::from_array(float_array(&main(&m))));
             }
         }
         let x = to_f64_vec(&v, "diagonal", "list")?;

@@ -8,7 +8,7 @@
 
 use super::log::SweepLog;
 use rhai::{Module, Shared, AST};
-use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+use std::sync::atomic::{AtomicBool, AtomicU64, AtomicUsize, Ordering};
 use std::sync::{Arc, Mutex, MutexGuard};
 use std::time::Instant;
 
@@ -70,6 +70,7 @@ pub struct SweepContext {
     next_id: AtomicUsize,
     log: Mutex<Vec<SweepLog>>,
     worker: AtomicBool,
+    shared_ops: Mutex<Option<Arc<AtomicU64>>>,
 }
 
 impl std::fmt::Debug for SweepContext {
@@ -131,7 +132,30 @@ impl SweepContext {
         *lock(&self.library) = parent.library();
         *lock(&self.modules) = parent.modules();
         *lock(&self.deadline) = parent.deadline();
+        *lock(&self.shared_ops) = lock(&parent.shared_ops).clone();
         self.worker.store(true, Ordering::Relaxed);
+    }
+
+    /// Starts the one operation budget that all cases of a top-level sweep share, with
+    /// `used` operations already spent by the cell that runs it (a nested sweep keeps the
+    /// budget of the sweep it runs in).
+    pub fn start_shared_operations(&self, used: u64) {
+        let mut s = lock(&self.shared_ops);
+        if !(self.is_worker() && s.is_some()) {
+            *s = Some(Arc::new(AtomicU64::new(used)));
+        }
+    }
+
+    /// Adds `n` operations to the shared budget of the sweep this worker runs for and
+    /// returns the total so far (0 outside a sweep's worker).
+    pub fn count_shared_operations(&self, n: u64) -> u64 {
+        if !self.is_worker() {
+            return 0;
+        }
+        match &*lock(&self.shared_ops) {
+            Some(c) => c.fetch_add(n, Ordering::Relaxed).saturating_add(n),
+            None => 0,
+        }
     }
 
     /// Whether this state belongs to a worker (sweeps in it are nested).

@@ -83,6 +83,15 @@ fn factorial(m: &Map, max_cases: usize) -> Rr<Cases> {
         names.push(k.to_string());
         levels.push(lv);
     }
+    // Each case holds its parameters here, then a result map, a log and a table row:
+    // a few hundred bytes at the least. Refused before allocating when the memory budget
+    // cannot hold that.
+    let per_case = 256 + 64 * levels.len();
+    crate::budget::reserve(
+        &format!("sweep: a grid of {total} cases"),
+        total.saturating_mul(per_case),
+    )
+    .map_err(fail)?;
     let mut values = Vec::with_capacity(total);
     let mut digit = vec![0usize; levels.len()];
     for _ in 0..total {

@@ -85,13 +85,15 @@ impl Worker {
         let curry: Vec<Dynamic> = f.curry().iter().map(Dynamic::flatten_clone).collect();
         f.set_curry(curry);
         let arg = Dynamic::from_map(params);
-        let r = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-            f.call::<Dynamic>(&self.engine, &self.library, (arg,))
-        }));
+        // Guarded like every evaluation: a panic is this case's internal error (the panic
+        // hook stays quiet on a guarded thread instead of ending the process).
+        let r = crate::guard::catch(|| f.call::<Dynamic>(&self.engine, &self.library, (arg,)));
         let result = match r {
             Ok(Ok(v)) => Ok(v.flatten()),
             Ok(Err(e)) => Err(describe(&e)),
-            Err(_) => Err("internal error: statebook failed on this case".into()),
+            Err(what) => Err(format!(
+                "internal error: statebook failed on this case ({what})"
+            )),
         };
         Outcome {
             result,
@@ -179,6 +181,14 @@ impl Progress {
     }
 }
 
+/// Whether a case's error ends the whole sweep: the run's deadline, its memory budget or
+/// the operation budget the cases share.
+fn stops_sweep(message: &str) -> bool {
+    message.contains("--timeout")
+        || message.contains("--max-memory")
+        || message.contains("cases together exceeded the operation limit")
+}
+
 /// Runs the cases `selected` (indices into `cases`) and returns their outcomes in the same
 /// order; `None` for cases not started because an earlier failure stopped the sweep.
 pub fn run(
@@ -190,12 +200,36 @@ pub fn run(
     show_progress: bool,
 ) -> Result<Vec<Option<Outcome>>, String> {
     let stop = AtomicBool::new(false);
+    parent
+        .sweep
+        .start_shared_operations(parent.operations.load(Ordering::Relaxed));
     let progress = Progress::new(selected.len(), opts.progress && show_progress);
     let one = |w: &mut Worker, &i: &usize| -> Option<Outcome> {
         if stop.load(Ordering::Relaxed) {
             return None;
         }
+        // Between cases: the deadline and the memory budget (a case's own operations
+        // are checked by its engine).
+        let refused = if crate::budget::cancelled()
+            || parent.sweep.deadline().is_some_and(|d| Instant::now() >= d)
+        {
+            Some(crate::budget::timeout_message(
+                parent.limits.timeout_seconds,
+            ))
+        } else {
+            crate::budget::check("sweep").err()
+        };
+        if let Some(m) = refused {
+            stop.store(true, Ordering::Relaxed);
+            return Some(Outcome {
+                result: Err(m),
+                log: String::new(),
+            });
+        }
         let o = w.call(f, cases.map(i));
+        if matches!(&o.result, Err(m) if stops_sweep(m)) {
+            stop.store(true, Ordering::Relaxed);
+        }
         if o.result.is_err() && opts.stop_on_error {
             stop.store(true, Ordering::Relaxed);
         }
@@ -203,6 +237,13 @@ pub fn run(
         Some(o)
     };
     let threads = if opts.parallel { opts.threads } else { Some(1) };
+    // Pool threads get the stack an evaluation gets (rayon's default is far too small for
+    // recursion to the call-depth limit), so the sweep always runs on a pool of its own.
+    let threads = match threads {
+        None => Some(rayon::current_num_threads()),
+        t => t,
+    };
+    let stack = crate::guard::stack_for(parent.limits.call_depth);
     // One worker per pool thread, built on first use. A thread that finds its slot busy
     // (it stole a case while waiting inside a nested sweep) builds a temporary worker.
     let on_pool = || -> Vec<Option<Outcome>> {
@@ -230,11 +271,20 @@ pub fn run(
         }
         Some(n) => rayon::ThreadPoolBuilder::new()
             .num_threads(n)
+            .stack_size(stack)
             .build()
             .map_err(|e| format!("sweep: cannot start {n} threads: {e}"))?
             .install(on_pool),
         None => on_pool(),
     };
+    // A sweep stopped by the deadline or the budget is an error of the whole sweep.
+    if let Some(Some(Outcome { result: Err(m), .. })) = out
+        .iter()
+        .find(|o| matches!(o, Some(Outcome { result: Err(m), .. }) if stops_sweep(m)))
+    {
+        progress.finish();
+        return Err(m.clone());
+    }
     progress.finish();
     Ok(out)
 }

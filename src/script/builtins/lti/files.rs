@@ -182,7 +182,7 @@ pub fn register(engine: &mut Engine) {
                 .sandbox
                 .read_path(&path)
                 .map_err(|e| fail(format!("load_model: {e}")))?;
-            let text = std::fs::read_to_string(&real)
+            let text = crate::budget::read_bounded(&real)
                 .map_err(|e| fail(format!("load_model: cannot read {path}: {e}")))?;
             let v: Value = serde_json::from_str(&text)
                 .map_err(|e| fail(format!("load_model: {path} is not valid JSON: {e}")))?;
