@@ -77,7 +77,10 @@ pub fn assign_poles(
 /// in the closed-loop eigenvectors: `x_j` must lie in `S_j = null(U₁ᵀ(A − λ_jI))`, where
 /// `B = [U₀ U₁][Z; 0]`, and then `K = Z⁻¹U₀ᵀ(A − XΛX⁻¹)`.
 ///
-/// **Algorithm.** Both paths first reduce `(A, B)` by an orthogonal controllability
+/// **Algorithm.** The model is first balanced by a diagonal power-of-two similarity (exact;
+/// the system balancing of `lti::staircase`), so that decisions do not depend on the units
+/// of the states, and the gain is mapped back at the end. Both paths then reduce `(A, B)`
+/// by an orthogonal controllability
 /// staircase (Van Dooren 1981, "The generalized eigenstructure problem in linear system
 /// theory", IEEE Trans. Automatic Control 26(1)), SVD rank decisions at
 /// `rank_tol·‖[A B]‖_F`; a non-trivial uncontrollable part is an error naming its modes.
@@ -144,6 +147,33 @@ pub fn assign_poles_with(
             eigenvector_condition: 1.0,
         });
     }
+    // Decide and compute on a model balanced by a diagonal power-of-two similarity
+    // x = S z (exact; see `balance_system`), so that neither the rank decisions nor the
+    // conditioning depend on the units of the states; then K = K̃ S⁻¹ in the user's
+    // coordinates (A − BK = S (Ã − B̃K̃) S⁻¹ has the same eigenvalues).
+    let none = DMatrix::zeros(0, n);
+    let scaling = crate::numeric::lti::staircase::balance_system(a, b, &none);
+    let (a_bal, b_bal, _) = scaling.apply_state(a, b, &none);
+    let gain_bal = balanced_gain(&a_bal, &b_bal, &wanted, params)?;
+    let gain = DMatrix::from_fn(m, n, |i, j| gain_bal[(i, j)] / scaling.state[j]);
+    let closed = a - b * &gain;
+    let achieved = eigenvalues(&closed)?;
+    let eigenvector_condition = eigenvector_condition(&closed);
+    Ok(PoleAssignment {
+        gain,
+        achieved,
+        eigenvector_condition,
+    })
+}
+
+/// The gain of [`assign_poles_with`] for checked data (n ≥ 1, canonical poles).
+fn balanced_gain(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    wanted: &[C64],
+    params: &PoleParams,
+) -> NumResult<DMatrix<f64>> {
+    let (n, m) = b.shape();
     let mut ab = DMatrix::zeros(n, n + m);
     ab.view_mut((0, 0), (n, n)).copy_from(a);
     ab.view_mut((0, n), (n, m)).copy_from(b);
@@ -156,23 +186,16 @@ pub fn assign_poles_with(
         let bc = bsvd.u.columns(0, 1) * sigma;
         let st = staircase(a, &bc, tol)?;
         ensure_controllable(&st, n)?;
-        let f = single_input(&st, &wanted)?;
+        let f = single_input(&st, wanted)?;
         let k = f.transpose() * st.z.transpose();
         bsvd.v.columns(0, 1) * k
     } else {
         let st = staircase(a, b, tol)?;
         ensure_controllable(&st, n)?;
-        check_multiplicity(&wanted, rank, params.conjugate_tol)?;
-        robust(a, &bsvd, rank, &wanted, params.sweeps)?
+        check_multiplicity(wanted, rank, params.conjugate_tol)?;
+        robust(a, &bsvd, rank, wanted, params.sweeps)?
     };
-    let closed = a - b * &gain;
-    let achieved = eigenvalues(&closed)?;
-    let eigenvector_condition = eigenvector_condition(&closed);
-    Ok(PoleAssignment {
-        gain,
-        achieved,
-        eigenvector_condition,
-    })
+    Ok(gain)
 }
 
 // ------------------------------------------------------------------------------------------
@@ -420,6 +443,24 @@ fn rotate_rows(m: &mut DMatrix<C64>, rot: Rot) {
 // ------------------------------------------------------------------------------------------
 // Several inputs: Kautsky–Nichols–Van Dooren, method 0
 
+/// `v` minus its projection on the orthonormal vectors `basis`.
+fn orthogonal_part(v: &DVector<C64>, basis: &[DVector<C64>]) -> DVector<C64> {
+    let mut r = v.clone();
+    for q in basis {
+        let k = q.dotc(&r);
+        r -= q * k;
+    }
+    r
+}
+
+/// Appends `r / ‖r‖` to `basis` when `r` is not zero.
+fn push_unit(basis: &mut Vec<DVector<C64>>, r: &DVector<C64>) {
+    let nr = r.norm();
+    if nr > 0.0 && nr.is_finite() {
+        basis.push(r / C64::new(nr, 0.0));
+    }
+}
+
 fn robust(
     a: &DMatrix<f64>,
     bsvd: &dense::FullSvd,
@@ -441,13 +482,53 @@ fn robust(
         }
         bases.push(allowed_subspace(a, &u1, lambda, rank)?);
     }
-    // Initial vectors: the k-th repetition of a pole takes the k-th basis vector.
+    // Initial vectors, greedily: each x_j is the basis vector of S_j farthest from the span
+    // of the vectors chosen before it (for a complex pole also c_k + i·c_l, scored with its
+    // conjugate, which the partner pole takes). Taking
+    // the first basis vector for every pole made X singular whenever the S_j coincide —
+    // with rank B = n every S_j is the whole space — and the sweeps cannot start from a
+    // singular X.
     let mut x = DMatrix::from_element(n, n, zero);
+    let mut chosen: Vec<DVector<C64>> = Vec::with_capacity(n);
     for j in 0..n {
-        let occurrence = (0..j)
-            .filter(|&i| (poles[i] - poles[j]).norm() == 0.0)
-            .count();
-        let col = bases[j].column(occurrence % rank).into_owned();
+        let col = if poles[j].im < 0.0 && j > 0 {
+            x.column(j - 1).map(|z| z.conj())
+        } else {
+            let s_j = &bases[j];
+            let mut candidates: Vec<DVector<C64>> =
+                (0..rank).map(|k| s_j.column(k).into_owned()).collect();
+            if poles[j].im > 0.0 {
+                // Real candidates would make x and x̄ dependent: also try c_k + i·c_l.
+                for k in 0..rank {
+                    for l in 0..rank {
+                        if k != l {
+                            let v = s_j.column(k) + s_j.column(l) * C64::new(0.0, 1.0);
+                            candidates.push(v / C64::new(2f64.sqrt(), 0.0));
+                        }
+                    }
+                }
+            }
+            let score = |v: &DVector<C64>| {
+                let mut basis = chosen.clone();
+                let first = orthogonal_part(v, &basis);
+                if poles[j].im > 0.0 {
+                    push_unit(&mut basis, &first);
+                    first
+                        .norm()
+                        .min(orthogonal_part(&v.map(|z| z.conj()), &basis).norm())
+                } else {
+                    first.norm()
+                }
+            };
+            candidates
+                .into_iter()
+                .map(|v| (score(&v), v))
+                .max_by(|p, q| p.0.total_cmp(&q.0))
+                .map(|(_, v)| v)
+                .unwrap_or_else(|| s_j.column(0).into_owned())
+        };
+        let r = orthogonal_part(&col, &chosen);
+        push_unit(&mut chosen, &r);
         x.set_column(j, &col);
     }
     let unit = |v: &DVector<C64>| -> Option<DVector<C64>> {
@@ -648,6 +729,46 @@ mod tests {
             let err = worst_mismatch(&want, &r.achieved);
             let tol = bound(&a, &b, &r);
             assert!(err <= tol, "n={n}: error {err:e} > bound {tol:e}");
+        }
+    }
+
+    #[test]
+    fn full_rank_input_matrix() {
+        // rank B = n: every S_j is the whole space and K = B⁻¹(A − XΛX⁻¹) exists for any
+        // poles, repeated up to n times. Refused before (X started singular). Cases: A = 0
+        // with B = I, a random A with a random B, and states scaled by 1e∓3.
+        let mut rng = Rng::new(77);
+        for &n in &[1usize, 2, 3, 5] {
+            let cases = [
+                (DMatrix::zeros(n, n), DMatrix::identity(n, n)),
+                (
+                    rng.matrix(n, n),
+                    rng.matrix(n, n) + DMatrix::identity(n, n) * 2.0,
+                ),
+            ];
+            for (a, b) in cases {
+                let t = DMatrix::from_fn(n, n, |i, j| {
+                    if i != j {
+                        0.0
+                    } else if i % 2 == 0 {
+                        1e-3
+                    } else {
+                        1e3
+                    }
+                });
+                let ti = t.map(|v| if v == 0.0 { 0.0 } else { 1.0 / v });
+                let scaled = (&ti * &a * &t, &ti * &b);
+                for (a, b) in [(a.clone(), b.clone()), scaled] {
+                    let repeated = vec![c(-2.0, 0.0); n];
+                    for want in [target(n), repeated] {
+                        let r = assign_poles(&a, &b, &want)
+                            .unwrap_or_else(|e| panic!("n = {n}: {e}\nA = {a}B = {b}"));
+                        let err = worst_mismatch(&want, &r.achieved);
+                        let tol = bound(&a, &b, &r).max(1e-9);
+                        assert!(err <= tol, "n={n}: error {err:e} > {tol:e}");
+                    }
+                }
+            }
         }
     }
 
