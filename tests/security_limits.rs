@@ -277,6 +277,94 @@ fn memory_sizes_parse_and_bad_ones_are_refused() {
     assert_eq!(out.status.code(), Some(2), "{}", text(&out.stderr));
 }
 
+// ── Linear growth (issue 16) ─────────────────────────────────────────────────────────
+
+#[test]
+fn many_pushes_are_linear_once_the_budget_bounds_memory() {
+    let d = folder(
+        "pushes",
+        &[(
+            "p.sbook",
+            "let a = []; for i in 0..300000 { a.push(i); } print(a.len());",
+        )],
+    );
+    let (out, t) = run(&d, "p.sbook", &["--timeout", "30"]);
+    no_signal(&out, "pushes");
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    assert!(
+        text(&out.stdout).contains("300000"),
+        "{}",
+        text(&out.stdout)
+    );
+    // 24–51 s before (the engine walked the whole array after each push); 0.3 s after.
+    assert!(t < Duration::from_secs(8), "{t:?}");
+}
+
+#[test]
+fn doubling_values_are_refused_within_seconds() {
+    // Strings stop at the per-string limit, checked before the copy is made (with the
+    // engine's limits simply switched off, this ran 87 s to the memory budget).
+    for (name, body) in [
+        ("str-assign", "let s = \"x\"; loop { s += s; }"),
+        ("str-plus", "let s = \"ab\"; loop { s = s + s; }"),
+        ("str-append", "let s = \"ab\"; loop { s.append(s); }"),
+        ("str-pad", "let s = \"\"; s.pad(1000000000000, \"x\");"),
+    ] {
+        let d = folder(name, &[("m.sbook", body)]);
+        let (out, t) = run(&d, "m.sbook", &["--max-memory", "256M", "--timeout", "30"]);
+        refused(&out, name, "--max-string-size");
+        assert!(t < Duration::from_secs(5), "{name}: {t:?}");
+    }
+    for (name, body, words) in [
+        (
+            "arr-plus",
+            "let a = [1]; loop { a += a; }",
+            "--max-", // the array limit or the memory budget, whichever comes first
+        ),
+        (
+            "arr-pad",
+            "let a = []; a.pad(1000000000000, 0);",
+            "--max-array-size",
+        ),
+        ("blob", "let b = blob(1000000000000);", "--max-array-size"),
+        (
+            "arr-nest",
+            "let x = [1]; for i in 0..40 { x = [x, x]; }",
+            "memory budget of 256 MiB",
+        ),
+        (
+            "map-nest",
+            "let m = #{ a: 1 }; for i in 0..40 { m = #{ a: m, b: m }; }",
+            "memory budget of 256 MiB",
+        ),
+    ] {
+        let d = folder(name, &[("m.sbook", body)]);
+        let (out, t) = run(&d, "m.sbook", &["--max-memory", "256M", "--timeout", "30"]);
+        refused(&out, name, words);
+        assert!(t < Duration::from_secs(8), "{name}: {t:?}");
+    }
+}
+
+#[test]
+fn deep_nesting_builds_and_drops_without_overflow() {
+    let d = folder(
+        "nest",
+        &[(
+            "n.sbook",
+            "let a = []; for i in 0..3000 { a = [a]; } print(\"built\"); a = 0; print(\"dropped\");",
+        )],
+    );
+    let (out, t) = run(&d, "n.sbook", &["--timeout", "30"]);
+    no_signal(&out, "nest");
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    assert!(
+        text(&out.stdout).contains("dropped"),
+        "{}",
+        text(&out.stdout)
+    );
+    assert!(t < Duration::from_secs(10), "{t:?}");
+}
+
 // ── Timeouts ─────────────────────────────────────────────────────────────────────────
 
 fn stopped_at_deadline(name: &str, body: &str, args: &[&str], deadline: f64) {

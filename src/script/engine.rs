@@ -20,12 +20,13 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     super::syntax::install(&mut e);
     e.set_max_operations(limits.operations);
     e.set_max_call_levels(limits.call_depth);
-    // The engine's size limits stay on: they are one switch with its walk over a whole
-    // array or map after each change (quadratic growth), and without them a doubling
-    // string only stops at the memory budget, after copying gigabytes.
-    e.set_max_string_size(limits.string_size);
-    e.set_max_array_size(limits.array_size);
-    e.set_max_map_size(limits.array_size);
+    // The engine's size limits are off (0): they are one switch with a walk over the
+    // whole value after each change to it (quadratic growth). The memory budget, checked
+    // in the progress callback after every operation, bounds the total; `sizes` keeps
+    // the per-string and per-array limits where values grow, in O(1).
+    e.set_max_string_size(0);
+    e.set_max_array_size(0);
+    e.set_max_map_size(0);
     e.set_max_expr_depths(256, 256);
     e.set_default_tag(Dynamic::from(StateHandle(state.clone())));
 
@@ -78,6 +79,7 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::stats::register(&mut e);
     register_display(&mut e, state);
     super::nesting::register(&mut e);
+    super::sizes::register(&mut e, limits.string_size, limits.array_size);
     super::stdlib::load(&mut e);
     // The core package's `sleep` has no place in a sandboxed analysis: it holds a run
     // past any deadline (and panicked on sleep(1e300)). Registered functions take

@@ -8,6 +8,7 @@ pub mod engine;
 pub mod json;
 pub mod nesting;
 pub mod show;
+pub mod sizes;
 pub mod state;
 pub mod stdlib;
 pub mod sweep;
