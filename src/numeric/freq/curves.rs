@@ -49,6 +49,22 @@ pub fn common_grid(models: &[&StateSpace]) -> NumResult<Vec<f64>> {
     Ok(grid)
 }
 
+/// The part of a common grid that belongs to `sys`: a discrete model's response is
+/// periodic in ω with period 2π/dt, so its curves end at the Nyquist frequency π/dt —
+/// points above it (from other models of a common grid) are dropped and π/dt itself is
+/// included. A continuous model keeps the whole grid.
+pub fn model_grid(grid: &[f64], sys: &StateSpace) -> Vec<f64> {
+    if sys.dt <= 0.0 {
+        return grid.to_vec();
+    }
+    let nyquist = PI / sys.dt;
+    let mut out: Vec<f64> = grid.iter().copied().filter(|&w| w < nyquist).collect();
+    if nyquist.is_finite() {
+        out.push(nyquist);
+    }
+    out
+}
+
 /// One channel's frequency response on a (possibly refined) grid.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ChannelCurve {
