@@ -138,12 +138,46 @@ fn limits(fig: &Figure) -> Vec<((f64, f64), (f64, f64))> {
             } else {
                 0.06
             };
+            if p.equal_aspect && !p.log_x && !p.log_y {
+                return framed_equal(ex, *ey, x_pad, y_pad);
+            }
             (
                 axis_limits(ex, p.log_x, x_pad),
                 axis_limits(*ey, p.log_y, y_pad),
             )
         })
         .collect()
+}
+
+/// The centre of an extent whose values are all (nearly) equal, or `None` when it has a
+/// spread (or no values).
+fn degenerate_centre(e: Extent) -> Option<f64> {
+    let (lo, hi) = e.0?;
+    (hi - lo <= lo.abs().max(hi.abs()) * 1e-9).then_some(0.5 * (lo + hi))
+}
+
+/// Limits of an equal-aspect (complex-plane) panel framed by its data: an axis whose
+/// values are all equal (poles on the real axis) borrows the other axis's span instead
+/// of a fixed unit range, so data a hundredth of a unit apart stays apart; a single
+/// point gets ±10 % of its modulus (±1 at the origin).
+fn framed_equal(ex: Extent, ey: Extent, x_pad: f64, y_pad: f64) -> ((f64, f64), (f64, f64)) {
+    let around = |mid: f64, half: f64| (mid - half, mid + half);
+    match (degenerate_centre(ex), degenerate_centre(ey)) {
+        (Some(mx), Some(my)) => {
+            let m = mx.abs().max(my.abs());
+            let half = if m > 0.0 { 0.1 * m } else { 1.0 };
+            (around(mx, half), around(my, half))
+        }
+        (None, Some(my)) if ex.0.is_some() => {
+            let xl = axis_limits(ex, false, x_pad);
+            (xl, around(my, 0.5 * (xl.1 - xl.0)))
+        }
+        (Some(mx), None) if ey.0.is_some() => {
+            let yl = axis_limits(ey, false, y_pad);
+            (around(mx, 0.5 * (yl.1 - yl.0)), yl)
+        }
+        _ => (axis_limits(ex, false, x_pad), axis_limits(ey, false, y_pad)),
+    }
 }
 
 /// Whether neighbouring tick labels along `scale` would touch.
@@ -408,4 +442,35 @@ pub fn layout(fig: &Figure) -> Frame {
         }
     }
     frame
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn pole_plot_frames_poles_close_to_the_origin() {
+        let fig = Figure::poles_zeros(&[(-0.05, 0.0), (-0.02, 0.0)], &[]);
+        let ((x0, x1), (y0, y1)) = limits(&fig)[0];
+        // Both poles inside with a margin, and the frame about their spread, not ±1.
+        assert!(x0 < -0.05 && x1 > -0.02, "x range {x0}..{x1}");
+        assert!(x1 - x0 < 0.1, "x range {x0}..{x1} far wider than the data");
+        assert!(y0 < 0.0 && y1 > 0.0 && y1 - y0 < 0.1, "y range {y0}..{y1}");
+        // After equal scaling in a plot area the poles are still far apart in pixels.
+        let ((x0, x1), _) = equalize((x0, x1), (y0, y1), 500.0, 350.0);
+        let px = |v: f64| (v - x0) / (x1 - x0) * 500.0;
+        assert!(
+            px(-0.02) - px(-0.05) > 100.0,
+            "poles {} px apart",
+            px(-0.02) - px(-0.05)
+        );
+        // A single pole off the origin is framed around itself.
+        let fig = Figure::poles_zeros(&[(-0.05, 0.0)], &[]);
+        let ((x0, x1), (y0, y1)) = limits(&fig)[0];
+        assert!(
+            x0 < -0.05 && x1 > -0.05 && x1 - x0 < 0.02,
+            "x range {x0}..{x1}"
+        );
+        assert!(y1 - y0 < 0.02, "y range {y0}..{y1}");
+    }
 }

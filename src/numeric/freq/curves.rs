@@ -49,6 +49,22 @@ pub fn common_grid(models: &[&StateSpace]) -> NumResult<Vec<f64>> {
     Ok(grid)
 }
 
+/// The part of a common grid that belongs to `sys`: a discrete model's response is
+/// periodic in ω with period 2π/dt, so its curves end at the Nyquist frequency π/dt —
+/// points above it (from other models of a common grid) are dropped and π/dt itself is
+/// included. A continuous model keeps the whole grid.
+pub fn model_grid(grid: &[f64], sys: &StateSpace) -> Vec<f64> {
+    if sys.dt <= 0.0 {
+        return grid.to_vec();
+    }
+    let nyquist = PI / sys.dt;
+    let mut out: Vec<f64> = grid.iter().copied().filter(|&w| w < nyquist).collect();
+    if nyquist.is_finite() {
+        out.push(nyquist);
+    }
+    out
+}
+
 /// One channel's frequency response on a (possibly refined) grid.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ChannelCurve {
@@ -105,6 +121,88 @@ pub fn channel_curves(sys: &StateSpace, grid: &[f64]) -> NumResult<Vec<ChannelCu
                 phase_deg,
             });
         }
+    }
+    Ok(out)
+}
+
+/// Most frequencies accepted by [`bode_at`].
+pub const MAX_BODE_FREQUENCIES: usize = 100_000;
+
+/// The Bode curve of a SISO model at the frequencies `w` (rad/s, positive, strictly
+/// ascending): exactly the numbers [`channel_curves`] draws. `w` is merged into the
+/// model's plotting grid ([`common_grid`]), the union is swept and unwrapped as for the
+/// figure (so the phase is anchored on the low-frequency asymptote and unwraps through
+/// resonances between the requested points), and the samples at `w` are returned.
+///
+/// **Errors.** A model that is not 1×1; an empty, non-finite, non-positive or
+/// non-ascending `w`, or more than [`MAX_BODE_FREQUENCIES`]; failures of the grid.
+pub fn bode_at(sys: &StateSpace, w: &[f64]) -> NumResult<ChannelCurve> {
+    if sys.outputs() != 1 || sys.inputs() != 1 {
+        return Err(NumError::invalid(
+            "sys",
+            format!(
+                "expected a single-input single-output model, found {} outputs × {} inputs",
+                sys.outputs(),
+                sys.inputs()
+            ),
+        ));
+    }
+    if w.is_empty() || w.len() > MAX_BODE_FREQUENCIES {
+        return Err(NumError::invalid(
+            "w",
+            format!(
+                "expected 1 to {MAX_BODE_FREQUENCIES} frequencies, found {}",
+                w.len()
+            ),
+        ));
+    }
+    for (k, &x) in w.iter().enumerate() {
+        if !(x.is_finite() && x > 0.0) {
+            return Err(NumError::invalid(
+                "w",
+                format!("frequency {k} is {x}, expected a positive finite number in rad/s"),
+            ));
+        }
+        if k > 0 && x <= w[k - 1] {
+            return Err(NumError::invalid(
+                "w",
+                format!(
+                    "frequencies must be strictly ascending; w[{k}] = {x} follows {}",
+                    w[k - 1]
+                ),
+            ));
+        }
+    }
+    let mut grid = common_grid(&[sys])?;
+    grid.extend_from_slice(w);
+    grid.sort_by(|a, b| a.total_cmp(b));
+    grid.dedup();
+    let full = channel_curves(sys, &grid)?
+        .pop()
+        .ok_or_else(|| NumError::invalid("sys", "the model has no channel"))?;
+    let mut out = ChannelCurve {
+        output: 0,
+        input: 0,
+        frequency: Vec::with_capacity(w.len()),
+        value: Vec::with_capacity(w.len()),
+        magnitude_db: Vec::with_capacity(w.len()),
+        phase_deg: Vec::with_capacity(w.len()),
+    };
+    let mut next = w.iter().copied().peekable();
+    for k in 0..full.frequency.len() {
+        if next.peek() == Some(&full.frequency[k]) {
+            next.next();
+            out.frequency.push(full.frequency[k]);
+            out.value.push(full.value[k]);
+            out.magnitude_db.push(full.magnitude_db[k]);
+            out.phase_deg.push(full.phase_deg[k]);
+        }
+    }
+    if out.frequency.len() != w.len() {
+        return Err(NumError::invalid(
+            "w",
+            "a requested frequency was lost from the sweep",
+        ));
     }
     Ok(out)
 }

@@ -1,7 +1,7 @@
 //! Frequency-domain built-ins: `frequency_response`, `loop_margins`, `bandwidth`,
 //! `h2_norm`, `hinf_norm`. The numerics are `crate::numeric::freq`.
 
-use crate::numeric::freq::{grid, margins, norms, response};
+use crate::numeric::freq::{curves, grid, margins, norms, response};
 use crate::script::convert::{fail, float_array, num, to_f64, to_system, type_name, Rr};
 use crate::script::docs::Doc;
 use crate::script::types::{Complex, ComplexMatrix};
@@ -22,6 +22,18 @@ pub const DOCS: &[Doc] = &[
                   response: [Complex or ComplexMatrix] }. Method: one Hessenberg reduction, \
                   then O(n²) per frequency (Laub 1981).",
         example: "let g = transfer_function([1], [1, 2]);\nfrequency_response(g, 2)   // 0.25-0.25j" },
+    Doc { name: "bode_data", family: "frequency domain",
+        usage: "bode_data(sys, w) → #{ frequency, magnitude_db, phase_deg }",
+        summary: "the numbers the Bode plot draws at given frequencies: gain in dB and unwrapped phase in degrees",
+        details: "sys: a single-input single-output model (for a MIMO model pick a channel \
+                  first, e.g. sys.channel(i, j)); w: an array of positive angular \
+                  frequencies in rad/s, strictly ascending (discrete: G(e^{jω·dt})). \
+                  frequency: the array w; magnitude_db: 20·log10|G|; phase_deg: the phase \
+                  unwrapped exactly as plot_bode draws it — continuous along the plot's \
+                  refined grid, starting on the low-frequency asymptote k·90° (k the zeros \
+                  minus the poles at the origin). NaN where G is zero or infinite (a pole on \
+                  the axis). Use it to export or test the plotted curves.",
+        example: "let g = transfer_function([1], [1, 1, 0, 0]);   // 1/(s²(s+1))\nlet b = bode_data(g, [0.01, 1, 100]);\nb.phase_deg[0]   // -180.57…, on the −180° asymptote" },
     Doc { name: "loop_margins", family: "frequency domain",
         usage: "loop_margins(loop_gain) → #{ gain_margin, gain_margin_db, phase_margin, gain_crossover, phase_crossover, delay_margin, gain_crossovers, phase_crossovers, gain_margins, phase_margins, stable_closed_loop }",
         summary: "gain, phase and delay margins of a SISO loop gain, with every crossover",
@@ -137,6 +149,35 @@ fn frequency_response_auto(sys: &Dynamic) -> Rr<Map> {
     Ok(m)
 }
 
+fn bode_data(sys: &Dynamic, w: &Dynamic) -> Rr<Map> {
+    let f = "bode_data";
+    let s = to_system(sys, f, "sys")?;
+    if s.inputs() != 1 || s.outputs() != 1 {
+        return Err(fail(format!(
+            "{f}: sys must be single-input single-output, found {} outputs × {} inputs; \
+             pick one channel first, e.g. sys.channel(0, 0)",
+            s.outputs(),
+            s.inputs()
+        )));
+    }
+    let (w, _) = frequencies(w, f)?;
+    let c = curves::bode_at(&s, &w).map_err(num(f))?;
+    let mut m = Map::new();
+    m.insert(
+        "frequency".into(),
+        Dynamic::from_array(float_array(&c.frequency)),
+    );
+    m.insert(
+        "magnitude_db".into(),
+        Dynamic::from_array(float_array(&c.magnitude_db)),
+    );
+    m.insert(
+        "phase_deg".into(),
+        Dynamic::from_array(float_array(&c.phase_deg)),
+    );
+    Ok(m)
+}
+
 /// A crossover frequency for the script: `()` when there is none (NaN in the numerics).
 fn crossover(w: f64) -> Dynamic {
     if w.is_nan() {
@@ -178,6 +219,7 @@ pub fn register(engine: &mut Engine) {
     engine.register_fn("frequency_response", |s: Dynamic| {
         frequency_response_auto(&s)
     });
+    engine.register_fn("bode_data", |s: Dynamic, w: Dynamic| bode_data(&s, &w));
     engine.register_fn("loop_margins", |l: Dynamic| -> Rr<Map> {
         let f = "loop_margins";
         let sys = to_system(&l, f, "loop_gain")?;

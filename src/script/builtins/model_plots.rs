@@ -21,7 +21,8 @@ pub const DOCS: &[Doc] = &[
         details: "sys_or_array: a model or an array of models, overlaid in one figure (a MIMO \
                   model draws every channel). The frequency grid covers every pole and zero \
                   of all models and is refined where the curves bend, so resonances are \
-                  resolved; the phase is unwrapped continuously. Frequencies in rad/s. \
+                  resolved; the phase is unwrapped continuously. Frequencies in rad/s; a \
+                  discrete model's curves end at its Nyquist frequency π/dt. \
                   options: the plot options (title, x_label, y_label, legend — an array of \
                   names, one per model, or false — width, height) and margins: true, which \
                   marks the 0 dB line, the gain and phase crossovers and the margins (see \
@@ -143,7 +144,7 @@ fn bode(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
             .get(k)
             .cloned()
             .or_else(|| many.then(|| format!("model {}", k + 1)));
-        let chans = curves::channel_curves(sys, &grid).map_err(num(f))?;
+        let chans = curves::channel_curves(sys, &curves::model_grid(&grid, sys)).map_err(num(f))?;
         let mimo = chans.len() > 1;
         for c in &chans {
             let label = if mimo {
@@ -319,4 +320,41 @@ pub fn register(engine: &mut Engine) {
     both!("plot_poles", pole_zero);
     both!("plot_root_locus", locus);
     both!("plot_singular_values", sigma);
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::script::convert::system_value;
+    use nalgebra::DMatrix;
+
+    fn first_order(pole: f64, dt: f64) -> Dynamic {
+        let m = |v: f64| DMatrix::from_element(1, 1, v);
+        system_value(StateSpace::new(m(pole), m(1.0), m(1.0), m(0.0), dt).expect("valid model"))
+    }
+
+    #[test]
+    fn discrete_bode_curves_end_at_the_nyquist_frequency() {
+        // A continuous lag at 1 rad/s (grid to 100 rad/s) overlaid with a discrete model,
+        // dt = 0.1: the discrete curves must end at π/dt ≈ 31.4 rad/s, not at 100.
+        let both = Dynamic::from_array(vec![first_order(-1.0, 0.0), first_order(0.5, 0.1)]);
+        let fig = bode(&both, None).expect("plots");
+        let nyquist = std::f64::consts::PI / 0.1;
+        let ends: Vec<f64> = fig.0.panels[0]
+            .series
+            .iter()
+            .map(|s| s.x.iter().copied().fold(f64::NEG_INFINITY, f64::max))
+            .collect();
+        assert_eq!(ends.len(), 2, "{ends:?}");
+        assert!(ends[0] > 99.0, "continuous curve ends at {}", ends[0]);
+        assert_eq!(ends[1], nyquist, "discrete curve ends at {}", ends[1]);
+        // Alone, a discrete model's curves also reach π/dt exactly.
+        let fig = bode(&first_order(0.5, 0.1), None).expect("plots");
+        let end = fig.0.panels[1].series[0]
+            .x
+            .iter()
+            .copied()
+            .fold(0.0, f64::max);
+        assert_eq!(end, nyquist);
+    }
 }

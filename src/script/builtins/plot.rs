@@ -1,7 +1,7 @@
 //! Figures: `plot`, `fig.add`, `fig.save`. The drawing itself is `crate::plot`.
 
 use crate::plot::{Figure as PlotFigure, MarkerShape, PlotOptions, Series};
-use crate::script::convert::{fail, to_finite_vec, to_str, type_name, Rr};
+use crate::script::convert::{fail, to_f64_vec, to_finite_vec, to_str, type_name, Rr};
 use crate::script::docs::Doc;
 use crate::script::state;
 use crate::script::types::Figure;
@@ -15,11 +15,14 @@ pub const DOCS: &[Doc] = &[
         details: "x: array of numbers. y: array of numbers, or an array of such arrays (one \
                   series each). options: #{ title, x_label, y_label, legend, log_x, log_y, \
                   markers, width, height } — legend is an array of series names (or false); \
-                  markers: true draws points instead of lines.",
+                  markers: true draws points instead of lines. A y value inf or -inf is a \
+                  gap: the line stops before it and starts again after it (as loop_margins \
+                  reports a missing margin); NaN is refused.",
         example: "let t = linear_grid(0, 5, 101);\nlet y = t.map(|v| exp(-v));\nplot(t, y, #{ title: \"decay\", x_label: \"time (s)\" })" },
     Doc { name: "add", family: "plots", usage: "fig.add(x, y)\nfig.add(x, y, options)",
         summary: "adds a series to a figure's first panel",
-        details: "options: #{ label, dashed, markers }.",
+        details: "options: #{ label, dashed, markers }. As in plot, a y value inf or -inf \
+                  is a gap in the line; NaN is refused.",
         example: "let fig = plot([0, 1], [0, 1]);\nfig.add([0, 1], [1, 0], #{ label: \"falling\" });\nfig" },
     Doc { name: "save", family: "plots", usage: "fig.save(path)",
         summary: "writes a figure as an SVG file (inside the analysis folder)",
@@ -92,17 +95,29 @@ pub fn options(m: &Map, fname: &str) -> Rr<PlotOptions> {
     })
 }
 
+/// Series values: numbers, where `inf`/`-inf` mark a gap in the line (the renderer skips
+/// unusable points and splits the line there); NaN is refused, naming the sample.
+fn gap_vec(v: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<f64>> {
+    let y = to_f64_vec(v, fname, arg)?;
+    if let Some(k) = y.iter().position(|x| x.is_nan()) {
+        return Err(fail(format!(
+            "{fname}: {arg}[{k}] is NaN, expected a finite number (or inf/-inf for a gap)"
+        )));
+    }
+    Ok(y)
+}
+
 fn series_list(y: &Dynamic, fname: &str) -> Rr<Vec<Vec<f64>>> {
     if let Some(a) = y.read_lock::<Array>() {
         if a.first().is_some_and(|v| v.is_array()) {
             return a
                 .iter()
                 .enumerate()
-                .map(|(k, s)| to_finite_vec(s, fname, &format!("y[{k}]")))
+                .map(|(k, s)| gap_vec(s, fname, &format!("y[{k}]")))
                 .collect();
         }
     }
-    Ok(vec![to_finite_vec(y, fname, "y")?])
+    Ok(vec![gap_vec(y, fname, "y")?])
 }
 
 fn labels(m: Option<&Map>, fname: &str) -> Rr<Vec<String>> {
@@ -159,7 +174,7 @@ fn make_plot(x: &Dynamic, y: &Dynamic, opts: Option<&Map>) -> Rr<Figure> {
 fn add_series(fig: &mut Figure, x: &Dynamic, y: &Dynamic, opts: Option<&Map>) -> Rr<()> {
     let f = "add";
     let x = to_finite_vec(x, f, "x")?;
-    let y = to_finite_vec(y, f, "y")?;
+    let y = gap_vec(y, f, "y")?;
     if x.len() != y.len() {
         return Err(fail(format!(
             "add: y has {} values but x has {}",
@@ -244,4 +259,28 @@ pub fn describe(fig: &Figure) -> String {
         if fig.0.panels.len() == 1 { "" } else { "s" },
         series
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn arr(v: &[f64]) -> Dynamic {
+        Dynamic::from_array(v.iter().map(|&x| Dynamic::from_float(x)).collect())
+    }
+
+    #[test]
+    fn infinities_are_gaps_and_nan_is_refused() {
+        let x = arr(&[0.0, 1.0, 2.0, 3.0, 4.0, 5.0]);
+        let y = arr(&[0.0, 1.0, f64::INFINITY, 2.0, 3.0, f64::NEG_INFINITY]);
+        let fig = make_plot(&x, &y, None).expect("inf is a gap");
+        let svg = fig.0.to_svg().expect("renders");
+        // [0, 1] and [2, 3] are drawn, the infinities are not.
+        assert_eq!(svg.matches("<polyline").count(), 2);
+        let e = make_plot(&x, &arr(&[0.0, f64::NAN, 1.0, 2.0, 3.0, 4.0]), None)
+            .err()
+            .map(|e| e.to_string())
+            .unwrap_or_default();
+        assert!(e.contains("plot: y[1] is NaN"), "{e}");
+    }
 }

@@ -97,8 +97,10 @@ pub const DOCS: &[Doc] = &[
         usage: "plot_step(sys) → Figure\nplot_step([sys, …])\nplot_step(sys, options)",
         summary: "step responses of one or more models, one panel per output",
         details: "A common automatic horizon (the longest of the models'). A single-input model \
-                  alone also shows its final value (dc_gain) as a dashed line.",
-        example: "plot_step([plant, discretize(plant, 0.2)])" },
+                  alone also shows its final value (dc_gain) as a dashed line. options: as \
+                  plot (title, legend — an array of names, one per model, or false — \
+                  width, height).",
+        example: "plot_step([plant, discretize(plant, 0.2)], #{ legend: [\"continuous\", \"sampled\"] })" },
     Doc { name: "Response", family: "time domain",
         usage: "resp.t → array (s)\nresp.y → Matrix (one row per sample, one column per output)\n\
                 resp.x → Matrix (states)\nresp.u → Matrix (inputs)",

@@ -6,7 +6,7 @@ use crate::numeric::lti::properties::dc_gain;
 use crate::numeric::lti::system::StateSpace;
 use crate::plot::{Figure as PlotFigure, ResponseCurve};
 use crate::script::builtins::plot::options;
-use crate::script::convert::{fail, num, to_system, type_name, Rr};
+use crate::script::convert::{fail, num, to_str, to_system, type_name, Rr};
 use crate::script::types::{Figure, Response};
 use rhai::{Array, Dynamic, Engine, Map};
 
@@ -84,9 +84,24 @@ fn systems_of(v: &Dynamic) -> Rr<Vec<StateSpace>> {
     Ok(vec![to_system(v, "plot_step", "sys")?])
 }
 
+/// The `legend` option's names (one per model), empty when absent or a plain flag.
+fn legend_names(o: Option<&Map>, f: &str) -> Rr<Vec<String>> {
+    let Some(a) = o
+        .and_then(|m| m.get("legend"))
+        .and_then(|v| v.read_lock::<Array>().map(|a| a.clone()))
+    else {
+        return Ok(Vec::new());
+    };
+    a.iter()
+        .enumerate()
+        .map(|(k, s)| to_str(s, f, &format!("legend[{k}]")))
+        .collect()
+}
+
 fn plot_step(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
     let f = "plot_step";
     let systems = systems_of(v)?;
+    let names_given = legend_names(o, f)?;
     // One horizon for all: the longest automatic one, so the curves share the axis.
     let mut t_final: f64 = 0.0;
     for s in &systems {
@@ -105,11 +120,13 @@ fn plot_step(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
                 .get(j)
                 .cloned()
                 .unwrap_or_else(|| format!("input {j}"));
-            let label = match (many_systems, many_inputs) {
-                (true, true) => Some(format!("model {k}, {input}")),
-                (true, false) => Some(format!("model {k}")),
-                (false, true) => Some(input),
-                (false, false) => None,
+            let label = match (names_given.get(k), many_systems, many_inputs) {
+                (Some(n), _, true) => Some(format!("{n}, {input}")),
+                (Some(n), _, false) => Some(n.clone()),
+                (None, true, true) => Some(format!("model {k}, {input}")),
+                (None, true, false) => Some(format!("model {k}")),
+                (None, false, true) => Some(input),
+                (None, false, false) => None,
             };
             let r = Response {
                 data,
@@ -153,4 +170,35 @@ pub fn register(engine: &mut Engine) {
     });
     engine.register_fn("plot_step", |v: Dynamic| plot_step(&v, None));
     engine.register_fn("plot_step", |v: Dynamic, o: Map| plot_step(&v, Some(&o)));
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::script::convert::system_value;
+    use nalgebra::DMatrix;
+
+    fn lag(pole: f64) -> Dynamic {
+        let m = |v: f64| DMatrix::from_element(1, 1, v);
+        system_value(StateSpace::new(m(pole), m(1.0), m(1.0), m(0.0), 0.0).expect("valid model"))
+    }
+
+    #[test]
+    fn legend_names_the_models() {
+        let both = Dynamic::from_array(vec![lag(-1.0), lag(-3.0)]);
+        let mut o = Map::new();
+        o.insert(
+            "legend".into(),
+            Dynamic::from_array(vec!["slow".into(), "fast".into()]),
+        );
+        let fig = plot_step(&both, Some(&o)).expect("plots");
+        let labels: Vec<Option<String>> = fig.0.panels[0]
+            .series
+            .iter()
+            .map(|s| s.label.clone())
+            .collect();
+        assert!(labels.contains(&Some("slow".into())), "{labels:?}");
+        assert!(labels.contains(&Some("fast".into())), "{labels:?}");
+        assert!(fig.0.to_svg().expect("renders").contains("slow"));
+    }
 }
