@@ -4,9 +4,10 @@
 use crate::numeric::freq::{curves, grid, margins, norms, response};
 use crate::script::convert::{fail, float_array, num, to_f64, to_system, type_name, Rr};
 use crate::script::docs::Doc;
+use crate::script::state;
 use crate::script::types::{Complex, ComplexMatrix};
 use nalgebra::DMatrix;
-use rhai::{Array, Dynamic, Engine, Map, FLOAT, INT};
+use rhai::{Array, Dynamic, Engine, Map, NativeCallContext, FLOAT, INT};
 
 /// Help entries of this file.
 pub const DOCS: &[Doc] = &[
@@ -149,7 +150,7 @@ fn frequency_response_auto(sys: &Dynamic) -> Rr<Map> {
     Ok(m)
 }
 
-fn bode_data(sys: &Dynamic, w: &Dynamic) -> Rr<Map> {
+fn bode_data(ctx: &NativeCallContext, sys: &Dynamic, w: &Dynamic) -> Rr<Map> {
     let f = "bode_data";
     let s = to_system(sys, f, "sys")?;
     if s.inputs() != 1 || s.outputs() != 1 {
@@ -161,6 +162,20 @@ fn bode_data(sys: &Dynamic, w: &Dynamic) -> Rr<Map> {
         )));
     }
     let (w, _) = frequencies(w, f)?;
+    if s.is_discrete() {
+        // A sampled model's response is periodic in ω with period 2π/dt and mirrored about
+        // π/dt: values beyond the Nyquist frequency repeat, they add nothing.
+        let nyquist = std::f64::consts::PI / s.dt;
+        if let Some(top) = w.iter().copied().find(|&x| x > nyquist * (1.0 + 1e-12)) {
+            state::warn(
+                ctx,
+                format!(
+                    "{f}: frequencies above the Nyquist frequency π/dt = {nyquist} rad/s of this \
+                     sampled model (first: {top} rad/s) only repeat lower ones"
+                ),
+            );
+        }
+    }
     let c = curves::bode_at(&s, &w).map_err(num(f))?;
     let mut m = Map::new();
     m.insert(
@@ -219,7 +234,10 @@ pub fn register(engine: &mut Engine) {
     engine.register_fn("frequency_response", |s: Dynamic| {
         frequency_response_auto(&s)
     });
-    engine.register_fn("bode_data", |s: Dynamic, w: Dynamic| bode_data(&s, &w));
+    engine.register_fn(
+        "bode_data",
+        |ctx: NativeCallContext, s: Dynamic, w: Dynamic| bode_data(&ctx, &s, &w),
+    );
     engine.register_fn("loop_margins", |l: Dynamic| -> Rr<Map> {
         let f = "loop_margins";
         let sys = to_system(&l, f, "loop_gain")?;
