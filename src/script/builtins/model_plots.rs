@@ -95,7 +95,8 @@ fn split_options(o: Option<&Map>, f: &str, extra: &[&str]) -> Rr<(PlotOptions, M
     Ok((plot_options(&plain, f)?, own))
 }
 
-fn legend_names(o: Option<&Map>, f: &str) -> Rr<Vec<String>> {
+/// The `legend` option's names (one per model), empty when absent or a plain flag.
+pub(crate) fn legend_names(o: Option<&Map>, f: &str) -> Rr<Vec<String>> {
     let Some(a) = o
         .and_then(|m| m.get("legend"))
         .and_then(|v| v.read_lock::<Array>().map(|a| a.clone()))

@@ -2,7 +2,7 @@
 //! `percentile` (arrays of numbers, or matrices: all entries).
 
 use crate::numeric::stats;
-use crate::script::convert::{fail, num, to_f64, type_name, Rr};
+use crate::script::convert::{num, to_f64, to_f64_vec, Rr};
 use crate::script::docs::Doc;
 use crate::script::types::Matrix;
 use rhai::{Array, Dynamic, Engine, FLOAT};
@@ -73,19 +73,11 @@ pub const DOCS: &[Doc] = &[
 
 /// The numbers of `v`: an array of ints/floats, or every entry of a Matrix.
 fn numbers(v: &Dynamic, fname: &str) -> Rr<Vec<f64>> {
+    // Statistics of a whole matrix are of all its entries; anything else is a list.
     if let Some(m) = v.read_lock::<Matrix>() {
         return Ok(m.0.iter().copied().collect());
     }
-    let Some(a) = v.read_lock::<Array>() else {
-        return Err(fail(format!(
-            "{fname}: expected an array of numbers or a Matrix, found {}",
-            type_name(v)
-        )));
-    };
-    a.iter()
-        .enumerate()
-        .map(|(k, x)| to_f64(x, fname, &format!("x[{k}]")))
-        .collect()
+    to_f64_vec(v, fname, "x")
 }
 
 /// Registers the statistics built-ins.

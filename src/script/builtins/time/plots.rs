@@ -5,8 +5,9 @@ use super::sim;
 use crate::numeric::lti::properties::dc_gain;
 use crate::numeric::lti::system::StateSpace;
 use crate::plot::{Figure as PlotFigure, ResponseCurve};
+use crate::script::builtins::model_plots::legend_names;
 use crate::script::builtins::plot::options;
-use crate::script::convert::{fail, num, to_str, to_system, type_name, Rr};
+use crate::script::convert::{fail, num, to_system, type_name, Rr};
 use crate::script::types::{Figure, Response};
 use rhai::{Array, Dynamic, Engine, Map};
 
@@ -82,20 +83,6 @@ fn systems_of(v: &Dynamic) -> Rr<Vec<StateSpace>> {
             .collect();
     }
     Ok(vec![to_system(v, "plot_step", "sys")?])
-}
-
-/// The `legend` option's names (one per model), empty when absent or a plain flag.
-fn legend_names(o: Option<&Map>, f: &str) -> Rr<Vec<String>> {
-    let Some(a) = o
-        .and_then(|m| m.get("legend"))
-        .and_then(|v| v.read_lock::<Array>().map(|a| a.clone()))
-    else {
-        return Ok(Vec::new());
-    };
-    a.iter()
-        .enumerate()
-        .map(|(k, s)| to_str(s, f, &format!("legend[{k}]")))
-        .collect()
 }
 
 fn plot_step(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
