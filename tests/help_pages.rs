@@ -101,3 +101,61 @@ fn every_help_example_runs() {
         failures.join("\n\n")
     );
 }
+
+#[test]
+fn every_declared_overload_is_under_its_own_name() {
+    for table in statebook::script::builtins::DECLARED {
+        for b in table.iter() {
+            for f in b.forms {
+                assert_eq!(
+                    f.name, b.name,
+                    "an overload of `{}` is declared under another name",
+                    b.name
+                );
+            }
+            assert!(
+                docs::FAMILIES.contains(&b.family),
+                "`{}` is in an unknown family `{}`",
+                b.name,
+                b.family
+            );
+        }
+    }
+}
+
+/// A declared built-in words its errors once: called with arguments of the wrong kind
+/// (`()` for each), it fails with `name: …`, never `name: name: …`.
+#[test]
+fn declared_built_ins_word_argument_errors_once() {
+    let dir = std::env::temp_dir().join(format!("statebook-wording-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("temp dir");
+    let mut problems = Vec::new();
+    for table in statebook::script::builtins::DECLARED {
+        for b in table.iter() {
+            for f in b.forms {
+                if f.args.is_empty() || f.args.iter().all(|(_, k)| *k == "value") {
+                    continue;
+                }
+                let units = vec!["()"; f.args.len()].join(", ");
+                let text = format!("//== call\n{}({units});\n", b.name);
+                let mut session = Session::new(&SessionOptions {
+                    root: dir.clone(),
+                    ..SessionOptions::default()
+                });
+                let prov = files::provenance("wording.sbook", "");
+                let r = run::run_text(&mut session, &text, "wording.sbook", prov);
+                let Some(e) = run::first_error(&r) else {
+                    problems.push(format!("{}({units}) did not fail", b.name));
+                    continue;
+                };
+                let e = e.to_string();
+                let doubled = format!("{0}: {0}:", b.name);
+                if !e.contains(&format!("{}: ", b.name)) || e.contains(&doubled) {
+                    problems.push(format!("{}({units}): {e}", b.name));
+                }
+            }
+        }
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+    assert!(problems.is_empty(), "{}", problems.join("\n"));
+}

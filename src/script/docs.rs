@@ -42,6 +42,7 @@ pub fn all() -> Vec<Doc> {
     for part in super::builtins::DOC_TABLES {
         v.extend_from_slice(part);
     }
+    v.extend_from_slice(super::declare::pages());
     v.extend(crate::script::stdlib::docs());
     v
 }
@@ -81,8 +82,10 @@ pub fn page(d: &Doc) -> String {
     if !d.details.is_empty() {
         s.push('\n');
         for line in d.details.lines() {
-            s.push_str("  ");
-            s.push_str(line.trim_end());
+            if !line.trim().is_empty() {
+                s.push_str("  ");
+                s.push_str(line.trim_end());
+            }
             s.push('\n');
         }
     }

@@ -72,11 +72,15 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::plot::register(&mut e);
     builtins::files::register(&mut e);
     builtins::time::register(&mut e);
-    builtins::freq::register(&mut e);
     builtins::design::register(&mut e);
     builtins::model_plots::register(&mut e);
     builtins::sweep::register(&mut e);
     builtins::stats::register(&mut e);
+    for table in builtins::DECLARED {
+        for b in table.iter() {
+            (b.register)(&mut e);
+        }
+    }
     register_display(&mut e, state);
     super::nesting::register(&mut e);
     super::sizes::register(&mut e, limits.string_size, limits.array_size);

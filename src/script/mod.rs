@@ -3,6 +3,7 @@
 
 pub mod builtins;
 pub mod convert;
+pub mod declare;
 pub mod docs;
 pub mod engine;
 pub mod json;

@@ -21,7 +21,11 @@ use crate::display::Style;
 use crate::notebook::output::Output;
 use rhai::Dynamic;
 
-/// Every binding file's help table.
+/// The built-ins each binding file declares with [`crate::builtins!`] (registration and
+/// help page in one declaration).
+pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[freq::BUILTINS];
+
+/// Help tables of the binding files not yet written as declarations.
 pub const DOC_TABLES: &[&[Doc]] = &[
     arith::DOCS,
     complex::DOCS,
@@ -32,7 +36,6 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     output::DOCS,
     plot::DOCS,
     time::DOCS,
-    freq::DOCS,
     design::DOCS,
     model_plots::DOCS,
     sweep::DOCS,
