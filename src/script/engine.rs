@@ -75,7 +75,6 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::design::register(&mut e);
     builtins::model_plots::register(&mut e);
     builtins::sweep::register(&mut e);
-    builtins::stats::register(&mut e);
     for table in builtins::DECLARED {
         for b in table.iter() {
             (b.register)(&mut e);

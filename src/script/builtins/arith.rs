@@ -370,10 +370,6 @@ pub fn register(engine: &mut Engine) {
     engine.register_fn("hypot", |a: Dynamic, b: Dynamic| -> Rr<FLOAT> {
         Ok(to_f64(&a, "hypot", "a")?.hypot(to_f64(&b, "hypot", "b")?))
     });
-    engine.register_fn("max", |a: INT, b: FLOAT| (a as FLOAT).max(b));
-    engine.register_fn("max", |a: FLOAT, b: INT| a.max(b as FLOAT));
-    engine.register_fn("min", |a: INT, b: FLOAT| (a as FLOAT).min(b));
-    engine.register_fn("min", |a: FLOAT, b: INT| a.min(b as FLOAT));
     engine.register_fn("to_float", |x: FLOAT| x);
     // `pi` as a name: resolved only when the script has no variable of that name.
     #[allow(deprecated)] // the API is marked volatile, not deprecated

@@ -23,7 +23,7 @@ use rhai::Dynamic;
 
 /// The built-ins each binding file declares with [`crate::builtins!`] (registration and
 /// help page in one declaration).
-pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[freq::BUILTINS];
+pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[freq::BUILTINS, stats::BUILTINS];
 
 /// Help tables of the binding files not yet written as declarations.
 pub const DOC_TABLES: &[&[Doc]] = &[
@@ -39,7 +39,6 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     design::DOCS,
     model_plots::DOCS,
     sweep::DOCS,
-    stats::DOCS,
 ];
 
 /// Display of value types defined by the domain bindings (models, responses, figures).
