@@ -482,6 +482,27 @@ fn a_cr_only_analysis_file_runs_every_cell() {
 }
 
 #[test]
+fn a_cr_only_imported_module_is_read_like_the_main_file() {
+    let (project, _) = tree("cr-module");
+    // Lone CR line ends: an error inside the module must name its own line 6.
+    std::fs::write(
+        project.join("m.sbook"),
+        "// c\rfn twice(x) {\r  x * 2\r}\rfn bad() {\r  undefined_fn(1)\r}\r",
+    )
+    .expect("module");
+    let file = project.join("a.sbook");
+    std::fs::write(
+        &file,
+        "import \"m\" as m;\nprint(m::twice(21));\nm::bad();\n",
+    )
+    .expect("file");
+    let out = run_file(&file, &["run"]);
+    assert!(text(&out.stdout).contains("42"), "{}", text(&out.stdout));
+    let err = text(&out.stderr);
+    assert!(err.contains(":6:3"), "module line lost: {err}");
+}
+
+#[test]
 fn piped_repl_reports_a_non_utf8_line_and_goes_on() {
     let (project, _) = tree("non-utf8");
     let mut child = bin()

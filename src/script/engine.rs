@@ -199,7 +199,8 @@ impl SandboxResolver {
     ) -> Result<Shared<Module>, Box<EvalAltResult>> {
         let text = crate::budget::read_bounded(real)
             .map_err(|err| in_module(path, format!("import: cannot read {file}: {err}"), pos))?;
-        let mut ast = engine.compile(&text).map_err(|err| {
+        let text = crate::safe_fs::normalise_text(&text);
+        let mut ast = engine.compile(&*text).map_err(|err| {
             Box::new(EvalAltResult::ErrorInModule(
                 path.to_string(),
                 err.into(),
