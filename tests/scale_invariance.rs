@@ -17,7 +17,7 @@
 use nalgebra::{Complex, DMatrix};
 use statebook::numeric::freq::norms::{h2_norm, hinf_norm};
 use statebook::numeric::lti::balance::{balanced_truncation, hankel_singular_values};
-use statebook::numeric::lti::equivalence::find_transform;
+use statebook::numeric::lti::equivalence::{equivalence, find_transform};
 use statebook::numeric::lti::properties::{dc_gain, poles};
 use statebook::numeric::lti::realize::from_transfer_function;
 use statebook::numeric::lti::staircase::{
@@ -516,5 +516,102 @@ fn companion_forms_of_scaled_models_are_not_refused() {
             "{}",
             of.a
         );
+    }
+}
+
+/// An integer matrix `L U` with unit triangular `L`, `U` whose off-diagonal entries are
+/// integers in `−k…k`: determinant 1, so the inverse is an integer matrix too, and the
+/// condition grows with k.
+fn integer_transform(rng: &mut Rng, n: usize, k: i64) -> DMatrix<f64> {
+    let mut draw = || ((rng.next() * (k as f64 + 0.5)).round()).clamp(-(k as f64), k as f64);
+    let l = DMatrix::from_fn(n, n, |i, j| {
+        if i == j {
+            1.0
+        } else if i > j {
+            draw()
+        } else {
+            0.0
+        }
+    });
+    let u = DMatrix::from_fn(n, n, |i, j| {
+        if i == j {
+            1.0
+        } else if i < j {
+            draw()
+        } else {
+            0.0
+        }
+    });
+    l * u
+}
+
+fn condition(t: &DMatrix<f64>) -> f64 {
+    let s = t.clone().svd(false, false).singular_values;
+    s.max() / s.min()
+}
+
+#[test]
+#[ignore = "issue 13 item 7 open: fixed Markov tolerance 1e-8"]
+fn issue13_pairs_related_by_ill_conditioned_integer_transforms_are_equivalent() {
+    // Issue 13 item 7: pairs built with an exact integer T of condition 3e5 were called
+    // not equivalent (Markov error 1.1e-8 against a fixed 1e-8).
+    let mut rng = Rng(1313);
+    let mut worst_condition = 0.0f64;
+    for trial in 0..60 {
+        let n = 3 + trial % 4;
+        let base = random_stable(&mut rng, n, 1 + trial % 2, 1 + trial % 3);
+        let k = [2, 5, 10, 20, 40][trial % 5];
+        let t = integer_transform(&mut rng, n, k);
+        let cond = condition(&t);
+        if cond > 1e7 {
+            continue;
+        }
+        worst_condition = worst_condition.max(cond);
+        let (other, _) = transform_state(&base, &t).unwrap();
+        let e = equivalence(&base, &other).unwrap();
+        assert!(
+            e.equivalent,
+            "trial {trial}, cond(T) = {cond:.1e}: {}",
+            e.reason
+        );
+        // Rescaled copies of the same pair are equivalent too.
+        for s in scalings(n).iter().take(3) {
+            let e = equivalence(&scaled(&base, s), &other).unwrap();
+            assert!(e.equivalent, "trial {trial}, scaled {s:?}: {}", e.reason);
+        }
+    }
+    assert!(
+        worst_condition > 3e5,
+        "the sweep reaches condition {worst_condition:.1e}"
+    );
+}
+
+#[test]
+fn near_miss_pairs_stay_not_equivalent_under_ill_conditioned_transforms() {
+    // Soundness of the scaled tolerance: moving one pole by 1e-6 relative (or one gain by
+    // 1e-6) is a different model, however the other copy is transformed.
+    let mut rng = Rng(77);
+    for trial in 0..30 {
+        let n = 3 + trial % 3;
+        let base = random_stable(&mut rng, n, 1, 1);
+        let t = integer_transform(&mut rng, n, [2, 10, 40][trial % 3]);
+        // Move one pole: A → A + δ·λ·v wᵀ for a real eigenvalue would need eigenvectors;
+        // shifting the whole spectrum by 1e-6·ρ moves every pole by that amount.
+        let rho = sorted_poles(&base)
+            .iter()
+            .map(|p| p.norm())
+            .fold(0.0, f64::max);
+        let mut moved = base.clone();
+        for i in 0..n {
+            moved.a[(i, i)] += 1e-6 * rho;
+        }
+        let (other, _) = transform_state(&moved, &t).unwrap();
+        let e = equivalence(&base, &other).unwrap();
+        assert!(!e.equivalent, "trial {trial} (poles moved): {}", e.reason);
+        let mut gain = base.clone();
+        gain.c *= 1.0 + 1e-6;
+        let (other, _) = transform_state(&gain, &t).unwrap();
+        let e = equivalence(&base, &other).unwrap();
+        assert!(!e.equivalent, "trial {trial} (gain 1e-6): {}", e.reason);
     }
 }
