@@ -42,6 +42,7 @@ fn exempt(name: &str) -> bool {
                 | "append"
                 | "pad"
                 | "blob"
+                | "replace"
         )
 }
 

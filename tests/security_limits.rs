@@ -309,6 +309,14 @@ fn doubling_values_are_refused_within_seconds() {
         ("str-plus", "let s = \"ab\"; loop { s = s + s; }"),
         ("str-append", "let s = \"ab\"; loop { s.append(s); }"),
         ("str-pad", "let s = \"\"; s.pad(1000000000000, \"x\");"),
+        (
+            "str-replace",
+            "let s = \"ab\"; loop { s.replace(\"a\", \"aa\"); s.replace(\"b\", \"bb\"); }",
+        ),
+        (
+            "str-replace-char",
+            "let s = \"ab\"; loop { s.replace('a', \"aaa\"); }",
+        ),
     ] {
         let d = folder(name, &[("m.sbook", body)]);
         let (out, t) = run(&d, "m.sbook", &["--max-memory", "256M", "--timeout", "30"]);

@@ -5,7 +5,7 @@
 //! of `a = [a]` did not finish). They are off; the session-wide memory budget
 //! (`crate::budget`, checked after every operation) bounds the total, and these
 //! replacements keep a per-value limit where a value grows: a string's length in bytes
-//! (`--max-string-size`) on `+`, `+=`, `append` and `pad`, and the top-level length of an
+//! (`--max-string-size`) on `+`, `+=`, `append`, `pad` and `replace`, and the top-level length of an
 //! array or BLOB (`--max-array-size`) on `push`, `+`, `+=`, `append`, `pad`, `blob`.
 //! Each checks the size of the result before building it, so a doubling loop is refused
 //! at the limit instead of after copying gigabytes.
@@ -72,6 +72,52 @@ pub fn register(e: &mut Engine, string_size: usize, array_size: usize) {
             Ok(())
         });
     }
+    // `replace`: the result's length is known before it is built (non-overlapping matches,
+    // as `str::replace` counts them; an empty pattern matches before every character and
+    // at the end).
+    fn replaced_len(s: &str, find: &str, sub: &str) -> Option<usize> {
+        let count = if find.is_empty() {
+            s.chars().count() + 1
+        } else {
+            s.matches(find).count()
+        };
+        let removed = count.checked_mul(find.len())?;
+        s.len()
+            .checked_sub(removed)?
+            .checked_add(count.checked_mul(sub.len())?)
+    }
+    let replace = move |s: &mut ImmutableString, find: &str, sub: &str| -> R<()> {
+        if s.is_empty() {
+            return Ok(());
+        }
+        fits(STR, replaced_len(s, find, sub), sl)?;
+        *s = s.replace(find, sub).into();
+        Ok(())
+    };
+    e.register_fn(
+        "replace",
+        move |s: &mut ImmutableString, find: ImmutableString, sub: ImmutableString| {
+            replace(s, &find, &sub)
+        },
+    );
+    e.register_fn(
+        "replace",
+        move |s: &mut ImmutableString, find: ImmutableString, sub: char| {
+            replace(s, &find, &sub.to_string())
+        },
+    );
+    e.register_fn(
+        "replace",
+        move |s: &mut ImmutableString, find: char, sub: ImmutableString| {
+            replace(s, &find.to_string(), &sub)
+        },
+    );
+    e.register_fn(
+        "replace",
+        move |s: &mut ImmutableString, find: char, sub: char| {
+            replace(s, &find.to_string(), &sub.to_string())
+        },
+    );
     e.register_fn(
         "pad",
         move |s: &mut ImmutableString, len: INT, c: char| -> R<()> {
