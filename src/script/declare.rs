@@ -352,6 +352,7 @@ macro_rules! returns {
 returns! {
     FLOAT => "float", INT => "int", bool => "bool", Map => "map", Array => "array",
     Dynamic => "value", String => "string", rhai::ImmutableString => "string", () => "()",
+    super::types::Matrix => "Matrix",
 }
 
 /// The first of a list of expressions (the name of a group of overloads).
@@ -376,6 +377,8 @@ macro_rules! builtins {
         )+
     )*) => {
         /// The built-ins declared in this file.
+        // Parameter names are the page's names: `A`, `Q` and `R` read as in the mathematics.
+        #[allow(non_snake_case)]
         pub const BUILTINS: &[$crate::script::declare::Builtin] = &[$(
             $crate::script::declare::Builtin {
                 name: $crate::__first!($(stringify!($name)),+),
