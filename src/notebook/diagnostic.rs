@@ -104,6 +104,19 @@ impl ScriptError {
     }
 }
 
+/// Whether some page shows `name` as a property (`x.name` not followed by `(`).
+fn is_property(name: &str) -> bool {
+    let pat = format!(".{name}");
+    crate::script::docs::all().iter().any(|d| {
+        [d.usage, d.details].iter().any(|text| {
+            text.match_indices(&pat).any(|(i, _)| {
+                let after = text[i + pat.len()..].chars().next();
+                !after.is_some_and(|c| c.is_alphanumeric() || c == '_' || c == '(')
+            })
+        })
+    })
+}
+
 /// Words for one (innermost) engine error.
 fn describe(e: &EvalAltResult) -> String {
     use EvalAltResult as E;
@@ -123,8 +136,15 @@ fn describe(e: &EvalAltResult) -> String {
                 .unwrap_or("")
                 .trim()
                 .to_string();
-            let known = crate::script::docs::find(&name).is_some();
-            if known {
+            let page = crate::script::docs::find(&name);
+            let own_page = page.is_some_and(|d| d.name == name);
+            if page.is_some() && !own_page && is_property(&name) {
+                // `order(sys)` for the property `sys.order`.
+                format!(
+                    "{name} is a property, not a function: write value.{name} (e.g. \
+                     sys.{name})\nhint: `help {name}` shows it"
+                )
+            } else if page.is_some() {
                 format!(
                     "{name} cannot take these arguments: {sig}\nhint: `help {name}` shows how \
                      to call it"
