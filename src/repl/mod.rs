@@ -198,10 +198,17 @@ impl Repl {
             if let Some(dir) = h.parent() {
                 let _ = std::fs::create_dir_all(dir);
             }
-            // Through a temporary file and a rename, like every file statebook writes.
-            let tmp = h.with_extension("tmp");
+            // Through a temporary file and a rename, like every file statebook writes. The
+            // editor creates the file by name, so the name is unpredictable (a fixed name
+            // could be planted in advance as a link to another file).
+            let name = h.file_name().and_then(|n| n.to_str()).unwrap_or("history");
+            let tmp = h.with_file_name(format!(".{name}.sbtmp-{}", crate::safe_fs::random_id()));
             if editor.save_history(&tmp).is_ok() {
-                let _ = std::fs::rename(&tmp, h);
+                if std::fs::rename(&tmp, h).is_err() {
+                    let _ = std::fs::remove_file(&tmp);
+                }
+            } else {
+                let _ = std::fs::remove_file(&tmp);
             }
         }
         0
