@@ -26,23 +26,12 @@ fn registered() -> BTreeSet<String> {
 
 /// Operators and engine plumbing: documented on the operator pages where they differ from
 /// ordinary arithmetic (`^`, `%`), not one page per symbol; and `sleep`, registered only
-/// to refuse the core package's version in an analysis; `push`, `append`, `pad` and
-/// `blob`, the core package's own functions registered again with O(1) size checks.
+/// to refuse the core package's version in an analysis.
 fn exempt(name: &str) -> bool {
     name.chars().all(|c| "+-*/<>=!&|".contains(c))
         || matches!(
             name,
-            "to_string"
-                | "to_debug"
-                | "debug"
-                | "index$get$"
-                | "index$set$"
-                | "sleep"
-                | "push"
-                | "append"
-                | "pad"
-                | "blob"
-                | "replace"
+            "to_string" | "to_debug" | "debug" | "index$get$" | "index$set$" | "sleep"
         )
 }
 

@@ -22,6 +22,7 @@ pub struct Doc {
 /// The order in which families are listed.
 pub const FAMILIES: &[&str] = &[
     "numbers",
+    "lists and text",
     "matrices",
     "linear algebra",
     "models",

@@ -10,9 +10,58 @@
 //! Each checks the size of the result before building it, so a doubling loop is refused
 //! at the limit instead of after copying gigabytes.
 
+use super::docs::Doc;
 use rhai::{Array, Blob, Dynamic, Engine, EvalAltResult, ImmutableString, Position, INT};
 
 type R<T> = Result<T, Box<EvalAltResult>>;
+
+/// Help pages of the engine's own array and string functions that are registered again
+/// here with size checks.
+pub const DOCS: &[Doc] = &[
+    Doc {
+        name: "push",
+        family: "lists and text",
+        usage: "list.push(value)",
+        summary: "appends one value to the end of an array",
+        details: "The array may hold at most --max-array-size entries (checked before it grows).",
+        example: "let poles_seen = [];\npoles_seen.push(-1.5);\npoles_seen.len()   // 1",
+    },
+    Doc {
+        name: "append",
+        family: "lists and text",
+        usage: "list.append(other_list)\ntext.append(more_text)",
+        summary: "appends every entry of another array (or more text to a string)",
+        details: "Sizes are checked before growing: --max-array-size for arrays, \
+                  --max-string-size (bytes) for strings. a += b does the same.",
+        example: "let a = [1, 2];\na.append([3]);\na   // [1, 2, 3]",
+    },
+    Doc {
+        name: "pad",
+        family: "lists and text",
+        usage: "list.pad(length, value)\ntext.pad(length, character_or_text)",
+        summary: "extends an array (or a string) to a length by repeating a value",
+        details: "Nothing happens when it is already that long. Sizes are checked before \
+                  growing (--max-array-size, --max-string-size).",
+        example: "let gains = [1.0];\ngains.pad(3, 0.0);\ngains   // [1.0, 0.0, 0.0]",
+    },
+    Doc {
+        name: "blob",
+        family: "lists and text",
+        usage: "blob(length) → BLOB\nblob(length, byte) → BLOB",
+        summary: "a byte buffer of a given length (filled with zeros or a byte value)",
+        details: "length is checked against --max-array-size before anything is allocated.",
+        example: "blob(4).len()   // 4",
+    },
+    Doc {
+        name: "replace",
+        family: "lists and text",
+        usage: "text.replace(find, substitute)",
+        summary: "replaces every occurrence of some text (or a character) in a string, in place",
+        details: "find and substitute: strings or single characters. The length of the \
+                  result is checked against --max-string-size (bytes) before it is built.",
+        example: "let unit = \"rad/s\";\nunit.replace(\"rad\", \"deg\");\nunit   // \"deg/s\"",
+    },
+];
 
 fn too_large(what: &str) -> Box<EvalAltResult> {
     EvalAltResult::ErrorDataTooLarge(what.to_string(), Position::NONE).into()

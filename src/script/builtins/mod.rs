@@ -28,6 +28,7 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] =
 
 /// Help tables of the binding files not yet written as declarations.
 pub const DOC_TABLES: &[&[Doc]] = &[
+    crate::script::sizes::DOCS,
     arith::DOCS,
     complex::DOCS,
     files::DOCS,
