@@ -29,6 +29,44 @@ fn closed(zeta: f64, wn: f64, t: f64) -> f64 {
     1.0 - (-zeta * wn * t).exp() * ((wd * t).cos() + zeta / root * (wd * t).sin())
 }
 
+/// Time rescaled: ωn from 1e-3 to 1e3 rad/s gives the same overshoot and times scaled by
+/// 1/ωn (the closed forms), to 1e-8 relative.
+#[test]
+fn second_order_metrics_follow_a_rescaled_time_axis() {
+    for &zeta in &[1e-3, 0.2, 0.7] {
+        let root = (1.0f64 - zeta * zeta).sqrt();
+        let os = 100.0 * (-zeta * PI / root).exp();
+        let at_one = model_step_metrics(&second_order(zeta, 1.0), None)
+            .unwrap_or_else(|e| panic!("{e}"))[0]
+            .metrics;
+        for &wn in &[1e-3, 3.0, 10.0, 1e3] {
+            let m = model_step_metrics(&second_order(zeta, wn), None)
+                .unwrap_or_else(|e| panic!("{e}"))[0]
+                .metrics;
+            let tp = PI / (wn * root);
+            assert!(
+                (m.overshoot - os).abs() < 1e-8 * os,
+                "ζ = {zeta}, ωn = {wn}"
+            );
+            assert!(
+                (m.peak_time - tp).abs() < 1e-8 * tp,
+                "ζ = {zeta}, ωn = {wn}"
+            );
+            for (got, unit) in [
+                (m.rise_time, at_one.rise_time),
+                (m.settling_time, at_one.settling_time),
+            ] {
+                let want = unit / wn;
+                assert!(
+                    (got - want).abs() < 1e-8 * want,
+                    "ζ = {zeta}, ωn = {wn}: {got} vs {want}"
+                );
+            }
+            assert!((m.final_value - 1.0).abs() < 1e-12);
+        }
+    }
+}
+
 #[test]
 fn second_order_closed_forms_from_light_to_heavy_damping() {
     for &zeta in &[1e-5, 1e-4, 1e-3, 0.01, 0.1, 0.3, 0.5, 0.7, 0.9] {

@@ -291,14 +291,9 @@ impl Param for nalgebra::Complex<f64> {
 impl Param for Map {
     const KIND: &'static str = "map";
     fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
-        if v.is_map() {
-            Ok(v.cast::<Map>())
-        } else {
-            Err(call.fail(format_args!(
-                "{arg} must be a map #{{ … }}, found {}",
-                convert::type_name(&v)
-            )))
-        }
+        let found = convert::type_name(&v);
+        v.try_cast::<Map>()
+            .ok_or_else(|| call.fail(format_args!("{arg} must be a map #{{ … }}, found {found}")))
     }
 }
 
@@ -306,14 +301,9 @@ impl Param for Map {
 impl Param for Array {
     const KIND: &'static str = "array";
     fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
-        if v.is_array() {
-            Ok(v.cast::<Array>())
-        } else {
-            Err(call.fail(format_args!(
-                "{arg} must be an array, found {}",
-                convert::type_name(&v)
-            )))
-        }
+        let found = convert::type_name(&v);
+        v.try_cast::<Array>()
+            .ok_or_else(|| call.fail(format_args!("{arg} must be an array, found {found}")))
     }
 }
 

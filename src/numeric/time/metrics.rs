@@ -457,28 +457,6 @@ mod tests {
     }
 
     #[test]
-    fn second_order_overshoot_and_peak_time() {
-        // Handbook closed forms: overshoot 100·exp(−ζπ/√(1−ζ²)) %, peak time π/(ωn√(1−ζ²)).
-        for (zeta, wn) in [(0.2, 3.0), (0.5, 1.0), (0.7, 10.0)] {
-            let m = model_step_metrics(&second_order(zeta, wn), None).unwrap()[0].metrics;
-            let root = (1.0f64 - zeta * zeta).sqrt();
-            let os = 100.0 * (-zeta * std::f64::consts::PI / root).exp();
-            let tp = std::f64::consts::PI / (wn * root);
-            assert!(
-                (m.overshoot - os).abs() < 1e-6 * os,
-                "{} vs {os}",
-                m.overshoot
-            );
-            assert!(
-                (m.peak_time - tp).abs() < 1e-6 * tp,
-                "{} vs {tp}",
-                m.peak_time
-            );
-            assert!((m.final_value - 1.0).abs() < 1e-12);
-        }
-    }
-
-    #[test]
     fn first_order_rise_and_settling() {
         // τ·ln 9 (10–90 % rise) and τ·ln 50 (2 % settling), closed forms.
         let tau = 0.5;
