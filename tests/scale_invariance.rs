@@ -551,7 +551,6 @@ fn condition(t: &DMatrix<f64>) -> f64 {
 }
 
 #[test]
-#[ignore = "issue 13 item 7 open: fixed Markov tolerance 1e-8"]
 fn issue13_pairs_related_by_ill_conditioned_integer_transforms_are_equivalent() {
     // Issue 13 item 7: pairs built with an exact integer T of condition 3e5 were called
     // not equivalent (Markov error 1.1e-8 against a fixed 1e-8).
@@ -570,10 +569,15 @@ fn issue13_pairs_related_by_ill_conditioned_integer_transforms_are_equivalent() 
         let (other, _) = transform_state(&base, &t).unwrap();
         let e = equivalence(&base, &other).unwrap();
         assert!(
-            e.equivalent,
+            e.equivalent && e.margin <= 1.0,
             "trial {trial}, cond(T) = {cond:.1e}: {}",
             e.reason
         );
+        // Wherever the fixed tolerance would have refused the pair, the verdict says that
+        // the data's conditioning set the tolerance.
+        if e.markov_error > 1e-8 || e.frequency_error > 1e-6 {
+            assert!(e.reason.contains("ill-conditioned"), "{}", e.reason);
+        }
         // Rescaled copies of the same pair are equivalent too.
         for s in scalings(n).iter().take(3) {
             let e = equivalence(&scaled(&base, s), &other).unwrap();
@@ -588,30 +592,54 @@ fn issue13_pairs_related_by_ill_conditioned_integer_transforms_are_equivalent() 
 
 #[test]
 fn near_miss_pairs_stay_not_equivalent_under_ill_conditioned_transforms() {
-    // Soundness of the scaled tolerance: moving one pole by 1e-6 relative (or one gain by
-    // 1e-6) is a different model, however the other copy is transformed.
+    // Soundness of the conditioning-aware tolerance. Moving every pole by 1e-4 of the
+    // spectral radius, or scaling the gain by 1 + 1e-4, is a different model, however the
+    // other copy is transformed with cond(T) up to 1e6; a change of 1e-6 is found while
+    // cond(T) ≤ 1e4. Beyond that (up to 1e7) the transformed data may not resolve the
+    // change — a normwise rounding-level change of it moves the Markov parameters by as
+    // much — and then an "equivalent" verdict must say how far the data resolve them.
     let mut rng = Rng(77);
-    for trial in 0..30 {
+    let mut judged = 0;
+    for trial in 0..40 {
         let n = 3 + trial % 3;
         let base = random_stable(&mut rng, n, 1, 1);
         let t = integer_transform(&mut rng, n, [2, 10, 40][trial % 3]);
-        // Move one pole: A → A + δ·λ·v wᵀ for a real eigenvalue would need eigenvectors;
-        // shifting the whole spectrum by 1e-6·ρ moves every pole by that amount.
+        let cond = condition(&t);
+        if cond > 1e7 {
+            continue;
+        }
         let rho = sorted_poles(&base)
             .iter()
             .map(|p| p.norm())
             .fold(0.0, f64::max);
-        let mut moved = base.clone();
-        for i in 0..n {
-            moved.a[(i, i)] += 1e-6 * rho;
+        for delta in [1e-4, 1e-6] {
+            // Shifting the whole spectrum by δ·ρ moves every pole by that amount.
+            let mut moved = base.clone();
+            for i in 0..n {
+                moved.a[(i, i)] += delta * rho;
+            }
+            let mut gain = base.clone();
+            gain.c *= 1.0 + delta;
+            for (what, changed) in [("poles moved", &moved), ("gain", &gain)] {
+                let (other, _) = transform_state(changed, &t).unwrap();
+                let e = equivalence(&base, &other).unwrap();
+                if (delta > 1e-5 && cond <= 1e6) || cond <= 1e4 {
+                    assert!(
+                        !e.equivalent,
+                        "trial {trial}, cond(T) = {cond:.1e}, {what} by {delta:e}: {}",
+                        e.reason
+                    );
+                } else if e.equivalent {
+                    judged += 1;
+                    assert!(
+                        e.reason.contains("ill-conditioned") && e.reason.contains("resolved to"),
+                        "trial {trial}, cond(T) = {cond:.1e}, {what} by {delta:e}: a silent \
+                         verdict: {}",
+                        e.reason
+                    );
+                }
+            }
         }
-        let (other, _) = transform_state(&moved, &t).unwrap();
-        let e = equivalence(&base, &other).unwrap();
-        assert!(!e.equivalent, "trial {trial} (poles moved): {}", e.reason);
-        let mut gain = base.clone();
-        gain.c *= 1.0 + 1e-6;
-        let (other, _) = transform_state(&gain, &t).unwrap();
-        let e = equivalence(&base, &other).unwrap();
-        assert!(!e.equivalent, "trial {trial} (gain 1e-6): {}", e.reason);
     }
+    eprintln!("{judged} verdicts on 1e-6 changes were flagged as judgement calls");
 }

@@ -484,6 +484,7 @@ pub fn register(engine: &mut Engine) {
             "frequency_error".into(),
             Dynamic::from_float(e.frequency_error),
         );
+        m.insert("margin".into(), Dynamic::from_float(e.margin));
         m.insert(
             "transform".into(),
             e.transform.map(matrix_value).unwrap_or(Dynamic::UNIT),

@@ -148,12 +148,17 @@ pub const DOCS: &[Doc] = &[
         summary: "√eig(Wc·Wo), descending, from Cholesky factors of the Gramians", details: "",
         example: "hankel_singular_values(plant)" },
     Doc { name: "equivalence", family: "equivalence",
-        usage: "equivalence(a, b) → #{ equivalent, reason, markov_error, frequency_error, transform }",
+        usage: "equivalence(a, b) → #{ equivalent, reason, markov_error, frequency_error, margin, transform }",
         summary: "whether two models have the same input–output behaviour, and why",
         details: "Compares time-scaled Markov parameters up to a.order + b.order (tolerance \
                   1e-8 relative) and cross-checks the frequency responses on a grid covering \
-                  every pole (1e-6). When both models are minimal and of equal order, transform \
-                  is the T with b = transform_state(a, T); otherwise ().",
+                  every pole (1e-6). Where the data are ill-conditioned (a model reached \
+                  through a badly conditioned transform), a quantity's tolerance rises to \
+                  30·n·ε times its sensitivity to rounding-level changes of A, B, C, and the \
+                  reason says how far the data resolve it. margin is the largest difference \
+                  over its tolerance (≤ 1 when equivalent); between 0.1 and 10 the reason calls \
+                  the verdict borderline. When both models are minimal and of equal order, \
+                  transform is the T with b = transform_state(a, T); otherwise ().",
         example: "equivalence(plant, modal_realization(plant).system).equivalent   // true" },
     Doc { name: "find_transform", family: "equivalence", usage: "find_transform(a, b) → Matrix",
         summary: "the T with b = transform_state(a, T), or an error saying why none exists",
