@@ -6,7 +6,7 @@
 //! be an int or a float; a matrix may be a `Matrix`, an array of arrays of numbers, or a
 //! single number (a 1×1 matrix).
 
-use super::types::{Complex, ComplexMatrix, Matrix};
+use super::types::{Complex, Matrix};
 use crate::numeric::NumError;
 use nalgebra::DMatrix;
 use rhai::{Array, Dynamic, EvalAltResult, Position, FLOAT, INT};
@@ -39,20 +39,8 @@ pub fn as_fnptr(v: &Dynamic) -> Option<rhai::FnPtr> {
 
 /// The user-facing name of a value's type.
 pub fn type_name(v: &Dynamic) -> String {
-    if v.is::<Matrix>() {
-        "Matrix".into()
-    } else if v.is::<super::types::System>() {
-        "System".into()
-    } else if v.is::<super::types::TransferFunction>() {
-        "TransferFunction".into()
-    } else if v.is::<super::types::Response>() {
-        "Response".into()
-    } else if v.is::<super::types::Figure>() {
-        "Figure".into()
-    } else if v.is::<Complex>() {
-        "Complex".into()
-    } else if v.is::<ComplexMatrix>() {
-        "ComplexMatrix".into()
+    if let Some(k) = super::types::kind_of(v) {
+        k.name.into()
     } else if v.is_unit() {
         "nothing (unit)".into()
     } else {

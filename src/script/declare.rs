@@ -342,7 +342,10 @@ macro_rules! returns {
 returns! {
     FLOAT => "float", INT => "int", bool => "bool", Map => "map", Array => "array",
     Dynamic => "value", String => "string", rhai::ImmutableString => "string", () => "()",
-    super::types::Matrix => "Matrix",
+}
+
+impl<T: super::types::ValueType> Returns for T {
+    const KIND: &'static str = T::NAME;
 }
 
 /// The first of a list of expressions (the name of a group of overloads).

@@ -2,9 +2,7 @@
 //! arithmetic, every built-in, and the embedded standard library.
 
 use super::builtins;
-use super::show;
 use super::state::{SessionState, StateHandle};
-use super::types::{Complex, ComplexMatrix, Matrix};
 use crate::notebook::output::Output;
 use rhai::{Dynamic, Engine, EvalAltResult, Module, ModuleResolver, Position, Shared};
 use std::sync::atomic::Ordering;
@@ -100,23 +98,11 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
 /// `to_string`/`to_debug` of the value types use the session's display style, so `print`
 /// and string interpolation agree with `show`.
 fn register_display(e: &mut Engine, state: &Arc<SessionState>) {
-    macro_rules! disp {
-        ($t:ty) => {{
-            let s = state.clone();
-            e.register_fn("to_string", move |v: &mut $t| {
-                show::format(&Dynamic::from(v.clone()), s.style())
-            });
-            let s = state.clone();
-            e.register_fn("to_debug", move |v: &mut $t| {
-                show::format(&Dynamic::from(v.clone()), s.style())
-            });
-        }};
+    let s = state.clone();
+    let style: super::types::StyleSource = Arc::new(move || s.style());
+    for k in super::types::KINDS {
+        (k.register)(e, style.clone());
     }
-    disp!(Matrix);
-    disp!(Complex);
-    disp!(ComplexMatrix);
-    disp!(super::types::System);
-    disp!(super::types::TransferFunction);
 }
 
 /// Resolves `import "name" as m;` to `name.sbook` inside the sandbox.

@@ -4,18 +4,12 @@
 //! `Matrix` → array of rows; `Complex` → `{"re": …, "im": …}`; `ComplexMatrix` → rows of
 //! such objects; maps → objects (keys in sorted order, as rhai keeps them); arrays →
 //! arrays; `()` → `null`. JSON has no infinities or NaN, so those floats are written as
-//! the strings `"inf"`, `"-inf"` and `"nan"`. Model types encode themselves through
-//! [`EXTRA`].
+//! the strings `"inf"`, `"-inf"` and `"nan"`. Every value type encodes itself through
+//! [`crate::script::types::ValueType::json`].
 
-use super::types::{Complex, ComplexMatrix, Matrix};
+use super::types::KINDS;
 use rhai::{Array, Dynamic, Map};
 use serde_json::{json, Value};
-
-/// Extension point for types defined elsewhere (models, responses …).
-pub type Encoder = fn(&Dynamic) -> Option<Value>;
-
-/// Encoders of types defined outside this file.
-pub const EXTRA: &[Encoder] = &[crate::script::builtins::json_extra];
 
 /// A float as JSON (non-finite values as strings).
 pub fn float(x: f64) -> Value {
@@ -80,19 +74,10 @@ pub fn encode(v: &Dynamic) -> Value {
     if v.is_unit() {
         return Value::Null;
     }
-    if let Some(m) = v.read_lock::<Matrix>() {
-        return matrix(&m.0);
-    }
-    if let Some(z) = v.read_lock::<Complex>() {
-        return complex(z.0);
-    }
-    if let Some(m) = v.read_lock::<ComplexMatrix>() {
-        let m = &m.0;
-        return Value::Array(
-            (0..m.nrows())
-                .map(|i| Value::Array((0..m.ncols()).map(|j| complex(m[(i, j)])).collect()))
-                .collect(),
-        );
+    for k in KINDS {
+        if let Some(j) = (k.json)(v) {
+            return j;
+        }
     }
     if let Ok(x) = v.as_float() {
         return float(x);
@@ -115,11 +100,6 @@ pub fn encode(v: &Dynamic) -> Value {
             obj.insert(k.to_string(), encode(x));
         }
         return Value::Object(obj);
-    }
-    for f in EXTRA {
-        if let Some(j) = f(v) {
-            return j;
-        }
     }
     json!(v.to_string())
 }

@@ -1,15 +1,9 @@
 //! Display of any script value, for `print`, `show`, string interpolation and the value
 //! of a cell's last expression. Numeric values are formatted by [`crate::display`].
 
-use super::types::{Complex, ComplexMatrix, Matrix};
+use super::types::{Complex, KINDS};
 use crate::display::{self, Style};
 use rhai::{Array, Dynamic, Map};
-
-/// Extension point: model types and others register their display here.
-pub type Displayer = fn(&Dynamic, Style) -> Option<String>;
-
-/// Displayers of types defined outside this file (models, responses, figures …).
-pub const EXTRA: &[Displayer] = &[crate::script::builtins::display_extra];
 
 /// Deepest nesting of arrays and maps shown; deeper parts show as `…` (keeps the display
 /// of pathological data linear in its size).
@@ -32,14 +26,10 @@ pub fn format(v: &Dynamic, style: Style) -> String {
 }
 
 fn format_at_depth(v: &Dynamic, style: Style) -> String {
-    if let Some(m) = v.read_lock::<Matrix>() {
-        return display::real_matrix(&m.0, style);
-    }
-    if let Some(z) = v.read_lock::<Complex>() {
-        return display::complex(z.0.re, z.0.im, style);
-    }
-    if let Some(m) = v.read_lock::<ComplexMatrix>() {
-        return display::complex_matrix(&m.0, style);
+    for k in KINDS {
+        if let Some(s) = (k.show)(v, style) {
+            return s;
+        }
     }
     if let Ok(x) = v.as_float() {
         return display::real(x, style);
@@ -52,11 +42,6 @@ fn format_at_depth(v: &Dynamic, style: Style) -> String {
     }
     if let Some(m) = v.read_lock::<Map>() {
         return format_map(&m, style);
-    }
-    for f in EXTRA {
-        if let Some(s) = f(v, style) {
-            return s;
-        }
     }
     if v.is_unit() {
         return "()".into();

@@ -262,6 +262,16 @@ fn csv_value(v: &Dynamic) -> String {
     csv_field(&json::encode(v).to_string())
 }
 
+impl crate::script::types::ValueType for Table {
+    const NAME: &'static str = "Table";
+    fn show(&self, style: Style) -> String {
+        self.display(style)
+    }
+    fn json(&self) -> serde_json::Value {
+        self.to_json()
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -11,3 +11,13 @@ impl From<DMatrix<f64>> for Matrix {
         Matrix(m)
     }
 }
+
+impl super::ValueType for Matrix {
+    const NAME: &'static str = "Matrix";
+    fn show(&self, style: crate::display::Style) -> String {
+        crate::display::real_matrix(&self.0, style)
+    }
+    fn json(&self) -> serde_json::Value {
+        crate::script::json::matrix(&self.0)
+    }
+}

@@ -57,3 +57,13 @@ fn short(x: f64) -> String {
     let r: f64 = format!("{x:.5e}").parse().unwrap_or(x);
     format!("{r}")
 }
+
+impl super::ValueType for Response {
+    const NAME: &'static str = "Response";
+    fn show(&self, _: crate::display::Style) -> String {
+        self.summary()
+    }
+    fn json(&self) -> serde_json::Value {
+        crate::script::builtins::time::response_json(self)
+    }
+}
