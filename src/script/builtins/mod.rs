@@ -28,6 +28,7 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     stats::BUILTINS,
     matrix::BUILTINS,
     linalg::BUILTINS,
+    design::BUILTINS,
 ];
 
 /// Help tables of the binding files not yet written as declarations.
