@@ -29,6 +29,8 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     matrix::BUILTINS,
     linalg::BUILTINS,
     design::BUILTINS,
+    lti::BUILTINS,
+    lti::FILE_BUILTINS,
 ];
 
 /// Help tables of the binding files not yet written as declarations.

@@ -3,10 +3,10 @@
 
 use crate::numeric::lti::system::StateSpace;
 use crate::numeric::lti::tf::TransferFunction as Tf;
-use crate::script::convert::{fail, num, to_str, Rr};
+use crate::script::convert::{fail, num, Rr};
 use crate::script::state;
 use crate::script::types::{System, TransferFunction};
-use rhai::{Dynamic, Engine, NativeCallContext};
+use rhai::Dynamic;
 use serde_json::{json, Value};
 
 /// The format tag of model files.
@@ -151,42 +151,44 @@ pub fn decode(v: &Value) -> Rr<Dynamic> {
     }
 }
 
-/// Registers `save_model` and `load_model`.
-pub fn register(engine: &mut Engine) {
-    engine.register_fn(
-        "save_model",
-        |ctx: NativeCallContext, m: Dynamic, path: Dynamic| -> Rr<()> {
-            let path = to_str(&path, "save_model", "path")?;
-            let Some(st) = state::of(&ctx) else {
-                return Err(fail("save_model: no session"));
-            };
-            let real = st
-                .sandbox
-                .write_path(&path)
-                .map_err(|e| fail(format!("save_model: {e}")))?;
-            let doc = encode(&m)?;
-            let mut text = serde_json::to_string_pretty(&doc).unwrap_or_default();
-            text.push('\n');
-            crate::safe_fs::write_file(&real, text.as_bytes(), false)
-                .map_err(|e| fail(format!("save_model: cannot write {path}: {e}")))
-        },
-    );
-    engine.register_fn(
-        "load_model",
-        |ctx: NativeCallContext, path: Dynamic| -> Rr<Dynamic> {
-            let path = to_str(&path, "load_model", "path")?;
-            let Some(st) = state::of(&ctx) else {
-                return Err(fail("load_model: no session"));
-            };
-            let real = st
-                .sandbox
-                .read_path(&path)
-                .map_err(|e| fail(format!("load_model: {e}")))?;
-            let text = crate::budget::read_bounded(&real)
-                .map_err(|e| fail(format!("load_model: cannot read {path}: {e}")))?;
-            let v: Value = serde_json::from_str(&text)
-                .map_err(|e| fail(format!("load_model: {path} is not valid JSON: {e}")))?;
-            decode(&v)
-        },
-    );
+crate::builtins! {
+    /// writes a model as a versioned statebook JSON model file
+    ///
+    /// model: a System or a TransferFunction; path: inside the project folder. The format
+    /// is documented in docs/model-format.md.
+    ///
+    /// example:
+    ///     save_model(plant, "plant.model.json");
+    #[family = "output and files"]
+    fn save_model(call, model: Dynamic, path: String) -> () {
+        let Some(st) = state::of(call.ctx()) else {
+            return Err(call.fail("no session"));
+        };
+        let real = st.sandbox.write_path(&path).map_err(|e| call.fail(e))?;
+        let doc = encode(&model)?;
+        let mut text = serde_json::to_string_pretty(&doc).unwrap_or_default();
+        text.push('\n');
+        crate::safe_fs::write_file(&real, text.as_bytes(), false)
+            .map_err(|e| call.fail(format_args!("cannot write {path}: {e}")))
+    }
+
+    /// reads a statebook JSON model file
+    ///
+    /// path: inside the project folder. The format is documented in docs/model-format.md.
+    ///
+    /// example:
+    ///     save_model(plant, "plant.model.json");
+    ///     let p = load_model("plant.model.json");
+    #[family = "output and files"]
+    fn load_model(call, path: String) -> Dynamic as "System | TransferFunction" {
+        let Some(st) = state::of(call.ctx()) else {
+            return Err(call.fail("no session"));
+        };
+        let real = st.sandbox.read_path(&path).map_err(|e| call.fail(e))?;
+        let text = crate::budget::read_bounded(&real)
+            .map_err(|e| call.fail(format_args!("cannot read {path}: {e}")))?;
+        let v: Value = serde_json::from_str(&text)
+            .map_err(|e| call.fail(format_args!("{path} is not valid JSON: {e}")))?;
+        decode(&v)
+    }
 }
