@@ -76,7 +76,7 @@ impl Param for Feedthrough {
 struct SampleTime(f64);
 
 impl Param for SampleTime {
-    const KIND: &'static str = "s";
+    const KIND: &'static str = "seconds";
     fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
         let dt = call.number(&v, arg)?;
         if !(dt > 0.0 && dt.is_finite()) {
