@@ -87,7 +87,10 @@ fn help_lists_families_and_pages() {
     assert!(s.contains("db"), "stdlib functions are listed: {s}");
     let out = bin().args(["help", "solve"]).output().expect("run");
     let s = text(&out.stdout);
-    assert!(s.contains("solve(A, B)") && s.contains("example:"), "{s}");
+    assert!(
+        s.contains("solve(A: matrix, B: matrix) → Matrix") && s.contains("example:"),
+        "{s}"
+    );
     let out = bin().args(["help", "no_such_thing"]).output().expect("run");
     assert_eq!(out.status.code(), Some(1));
 }

@@ -9,85 +9,17 @@ use crate::numeric::lti::system::StateSpace;
 use crate::numeric::lti::tf::TransferFunction as Tf;
 use crate::numeric::NumError;
 use crate::script::convert::{
-    complex_array, fail, matrix_value, num, system_value, to_complex_vec, to_matrix, to_system,
-    type_name, Rr,
+    complex_array, fail, matrix_value, system_value, to_complex_vec, type_name, Rr,
 };
+use crate::script::declare::{Call, Model, Param};
 use crate::script::docs::Doc;
-use crate::script::state;
 use crate::script::types::{Matrix, System, TransferFunction};
 use nalgebra::DMatrix;
-use rhai::{Dynamic, Engine, Map, NativeCallContext, FLOAT, INT};
+use rhai::{Dynamic, Engine, Map, FLOAT, INT};
 
-/// Help entries of this file.
+/// The help page of the model operators, registered by hand in [`register_operators`]
+/// (the named built-ins are declared in `BUILTINS`).
 pub const DOCS: &[Doc] = &[
-    Doc { name: "solve_lyapunov", family: "design", usage: "solve_lyapunov(A, Q) → Matrix",
-        summary: "the solution X of the continuous Lyapunov equation A X + X Aᵀ + Q = 0",
-        details: "A n×n, Q n×n symmetric. Unique when no two eigenvalues of A add up to 0; \
-                  for a stable A and Q ⪰ 0, X ⪰ 0 (e.g. the controllability Gramian for \
-                  Q = B Bᵀ). Bartels–Stewart method on the real Schur form.",
-        example: "solve_lyapunov([[-2]], [[4]])   // [[1]]: −2x − 2x + 4 = 0" },
-    Doc { name: "solve_lyapunov_discrete", family: "design",
-        usage: "solve_lyapunov_discrete(A, Q) → Matrix",
-        summary: "the solution X of the discrete Lyapunov equation A X Aᵀ − X + Q = 0",
-        details: "A n×n, Q n×n symmetric. Unique when no product of two eigenvalues of A is 1.",
-        example: "solve_lyapunov_discrete([[0.5]], [[3]])   // [[4]]: 0.25x − x + 3 = 0" },
-    Doc { name: "solve_riccati", family: "design", usage: "solve_riccati(A, B, Q, R) → Matrix",
-        summary: "the stabilizing solution X of the continuous Riccati equation AᵀX + XA − XBR⁻¹BᵀX + Q = 0",
-        details: "A n×n, B n×m, Q n×n symmetric positive semidefinite, R m×m symmetric \
-                  positive definite. X makes A − BR⁻¹BᵀX stable; when none exists the error \
-                  names the uncontrollable or unobservable mode. Schur method (Laub 1979) \
-                  plus one Newton step; warns when X is ill-determined. See lq_regulator \
-                  for the gain and poles.",
-        example: "solve_riccati([[0, 1], [0, 0]], [[0], [1]], identity(2), [[1]])" },
-    Doc { name: "solve_riccati_discrete", family: "design",
-        usage: "solve_riccati_discrete(A, B, Q, R) → Matrix",
-        summary: "the stabilizing solution X of the discrete Riccati equation AᵀXA − X − AᵀXB(R + BᵀXB)⁻¹BᵀXA + Q = 0",
-        details: "Shapes and conditions as solve_riccati; X makes A − BK Schur-stable with \
-                  K = (R + BᵀXB)⁻¹BᵀXA. Structure-preserving doubling plus Newton steps.",
-        example: "solve_riccati_discrete([[1, 0.1], [0, 1]], [[0], [0.1]], identity(2), [[1]])" },
-    Doc { name: "assign_poles", family: "design", usage: "assign_poles(sys, poles) → Matrix",
-        summary: "a state-feedback gain K with eig(A − B K) = poles",
-        details: "poles: an array of exactly n numbers or Complex values, closed under \
-                  conjugation (each complex pole with its conjugate). (A, B) must be \
-                  controllable. One input: orthogonal deflation (Miminis & Paige 1982); \
-                  several inputs: the robust method of Kautsky, Nichols & Van Dooren 1985, \
-                  which keeps the closed-loop eigenvectors well conditioned. Warns when the \
-                  eigenvector condition number exceeds 1e5: the placed poles are then \
-                  sensitive to small model errors. Apply K with with_state_feedback.",
-        example: "let K = assign_poles(plant, [complex(-1, 1), complex(-1, -1)]);" },
-    Doc { name: "lq_regulator", family: "design",
-        usage: "lq_regulator(sys, Q, R) → #{ gain, riccati, closed_loop_poles }",
-        summary: "the linear-quadratic state-feedback regulator u = −K x",
-        details: "Minimises ∫ (xᵀQx + uᵀRu) dt (discrete: the sum). Q n×n symmetric ⪰ 0, \
-                  R m×m symmetric ≻ 0. gain: K (m×n); riccati: the stabilizing Riccati \
-                  solution X (cost x₀ᵀXx₀); closed_loop_poles: eig(A − BK). A discrete model \
-                  gets the discrete regulator.",
-        example: "let lq = lq_regulator(plant, identity(2), [[1]]);\nlq.gain" },
-    Doc { name: "lq_estimator", family: "design",
-        usage: "lq_estimator(sys, W, V) → #{ gain, covariance, estimator_poles }",
-        summary: "the steady-state Kalman estimator gain L for process noise W and sensor noise V",
-        details: "Noise model x' = Ax + Bu + w, y = Cx + Du + v with cov w = W (n×n, ⪰ 0) \
-                  and cov v = V (p×p, ≻ 0). Estimator x̂' = Ax̂ + Bu + L(y − Cx̂ − Du). gain: \
-                  L (n×p); covariance: the steady error covariance P; estimator_poles: \
-                  eig(A − LC). Discrete models: predictor form (P the a priori covariance).",
-        example: "let kf = lq_estimator(plant, identity(2) * 0.1, [[0.01]]);\nkf.estimator_poles" },
-    Doc { name: "with_state_feedback", family: "design",
-        usage: "with_state_feedback(sys, K) → System",
-        summary: "the model under state feedback u = −K x + r, with r the new input",
-        details: "K: m×n (inputs × states). The result is x' = (A − BK)x + Br, \
-                  y = (C − DK)x + Dr: same states, inputs (now the reference r) and outputs. \
-                  No estimator is involved: the full state is assumed measured.",
-        example: "let K = assign_poles(plant, [-2, -3]);\nlet cl = with_state_feedback(plant, K);\npoles(cl)" },
-    Doc { name: "close_loop", family: "design",
-        usage: "close_loop(forward) → System | TransferFunction\nclose_loop(forward, feedback_path)",
-        summary: "the negative feedback loop y = G(u − H y) around a forward model G",
-        details: "Without feedback_path: unity feedback H = I (G square). feedback_path: a \
-                  System, TransferFunction, number or Matrix (a static gain), with as many \
-                  inputs as G has outputs and as many outputs as G has inputs. The result \
-                  is (I + GH)⁻¹G; its states are those of G then those of H. Two transfer \
-                  functions give a TransferFunction G/(1 + GH) (no cancellation), anything \
-                  else a System. An error when I + D_G D_H is singular (an algebraic loop).",
-        example: "let g = transfer_function([1], [1, 1, 0]);\nclose_loop(g)   // 1/(s² + s + 1)" },
     Doc { name: "*", family: "design",
         usage: "g * h → System | TransferFunction\ng + h\ng - h\n-g\nk * g",
         summary: "model operators: g * h series (h first, then g); g + h, g - h parallel; -g",
@@ -106,49 +38,6 @@ const POLE_CONDITION_WARNING: f64 = 1e5;
 
 /// Condition number of `U₁₁` above which the Riccati solvers warn.
 const RICCATI_CONDITION_WARNING: f64 = 1e8;
-
-fn riccati_warning(ctx: &NativeCallContext, f: &str, cond: f64) {
-    if cond > RICCATI_CONDITION_WARNING {
-        state::warn(
-            ctx,
-            format!(
-                "{f}: the solution is ill-determined (condition of the invariant-subspace basis \
-                 {cond:.2e}); small changes in the data may change X a lot"
-            ),
-        );
-    }
-}
-
-fn lyapunov(f: &str, a: &Dynamic, q: &Dynamic, discrete: bool) -> Rr<Dynamic> {
-    let a = to_matrix(a, f, "A")?;
-    let q = to_matrix(q, f, "Q")?;
-    let x = if discrete {
-        sylvester::solve_lyapunov_discrete(&a, &q)
-    } else {
-        sylvester::solve_lyapunov(&a, &q)
-    };
-    x.map(matrix_value).map_err(num(f))
-}
-
-fn riccati_solve(
-    ctx: &NativeCallContext,
-    f: &str,
-    args: [&Dynamic; 4],
-    discrete: bool,
-) -> Rr<Dynamic> {
-    let a = to_matrix(args[0], f, "A")?;
-    let b = to_matrix(args[1], f, "B")?;
-    let q = to_matrix(args[2], f, "Q")?;
-    let r = to_matrix(args[3], f, "R")?;
-    let sol = if discrete {
-        riccati::solve_riccati_discrete(&a, &b, &q, &r)
-    } else {
-        riccati::solve_riccati(&a, &b, &q, &r)
-    }
-    .map_err(num(f))?;
-    riccati_warning(ctx, f, sol.u11_condition);
-    Ok(matrix_value(sol.x))
-}
 
 // ------------------------------------------------------------------ operators
 
@@ -278,44 +167,71 @@ fn tf_value(t: Tf) -> Dynamic {
     Dynamic::from(TransferFunction(t))
 }
 
-fn close_loop(forward: &Dynamic, feedback: Option<&Dynamic>) -> Rr<Dynamic> {
-    let f = "close_loop";
-    let Some(g) = Operand::of(forward).filter(|o| matches!(o, Operand::Ss(_) | Operand::Tf(_)))
-    else {
-        return Err(fail(format!(
-            "{f}: forward must be a System or a TransferFunction, found {}",
-            type_name(forward)
-        )));
-    };
-    let dt = g.dt().unwrap_or(0.0);
-    let h = match feedback {
-        None => None,
-        Some(v) => Some(Operand::of(v).ok_or_else(|| {
-            fail(format!(
-                "{f}: feedback_path must be a System, TransferFunction, number or Matrix, \
-                 found {}",
-                type_name(v)
+/// The forward model of `close_loop`: a System or a TransferFunction (kept as one, so
+/// that two transfer functions give a transfer function).
+struct Forward(Operand);
+
+impl Param for Forward {
+    const KIND: &'static str = "System | TransferFunction";
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        Operand::of(&v)
+            .filter(|o| matches!(o, Operand::Ss(_) | Operand::Tf(_)))
+            .map(Forward)
+            .ok_or_else(|| {
+                call.fail(format_args!(
+                    "{arg} must be a System or a TransferFunction, found {}",
+                    type_name(&v)
+                ))
+            })
+    }
+}
+
+/// The feedback path of `close_loop`: a model or a static gain (number or Matrix).
+struct FeedbackPath(Operand);
+
+impl Param for FeedbackPath {
+    const KIND: &'static str = "System | TransferFunction | number | Matrix";
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        Operand::of(&v).map(FeedbackPath).ok_or_else(|| {
+            call.fail(format_args!(
+                "{arg} must be a System, TransferFunction, number or Matrix, found {}",
+                type_name(&v)
             ))
-        })?),
-    };
+        })
+    }
+}
+
+/// Poles to assign: an array of numbers or Complex values.
+struct Poles(Vec<nalgebra::Complex<f64>>);
+
+impl Param for Poles {
+    const KIND: &'static str = "[number | Complex]";
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        to_complex_vec(&v, call.name, arg).map(Poles)
+    }
+}
+
+/// The loop around `g` with feedback path `h` (unity feedback without one).
+fn close_loop(call: &Call, g: Operand, h: Option<Operand>) -> Rr<Dynamic> {
+    let dt = g.dt().unwrap_or(0.0);
     if let Operand::Tf(t) = &g {
         let ht = match &h {
-            None => Some(Tf::new(&[1.0], &[1.0], dt).map_err(num(f))?),
-            Some(h) => h.as_tf(dt).transpose().map_err(num(f))?,
+            None => Some(Tf::new(&[1.0], &[1.0], dt).map_err(call.num())?),
+            Some(h) => h.as_tf(dt).transpose().map_err(call.num())?,
         };
         if let Some(ht) = ht {
-            return t.negative_feedback(&ht).map(tf_value).map_err(num(f));
+            return t.negative_feedback(&ht).map(tf_value).map_err(call.num());
         }
     }
-    let gs = g.as_ss(dt).map_err(num(f))?;
+    let gs = g.as_ss(dt).map_err(call.num())?;
     let r = match h {
         None => interconnect::unity_feedback(&gs),
         Some(h) => {
-            let hs = h.as_ss(dt).map_err(num(f))?;
+            let hs = h.as_ss(dt).map_err(call.num())?;
             interconnect::feedback(&gs, &hs, interconnect::Sign::Minus)
         }
     };
-    r.map(system_value).map_err(num(f))
+    r.map(system_value).map_err(call.num())
 }
 
 fn negated(g: &Dynamic) -> Rr<Dynamic> {
@@ -365,97 +281,200 @@ fn register_operators(engine: &mut Engine) {
     engine.register_fn("-", |g: TransferFunction| negated(&Dynamic::from(g)));
 }
 
-/// Registers the design built-ins and the model operators.
+/// Registers the model operators (the named design built-ins are declared in
+/// `BUILTINS`).
 pub fn register(engine: &mut Engine) {
-    engine.register_fn("solve_lyapunov", |a: Dynamic, q: Dynamic| {
-        lyapunov("solve_lyapunov", &a, &q, false)
-    });
-    engine.register_fn("solve_lyapunov_discrete", |a: Dynamic, q: Dynamic| {
-        lyapunov("solve_lyapunov_discrete", &a, &q, true)
-    });
-    engine.register_fn(
-        "solve_riccati",
-        |ctx: NativeCallContext, a: Dynamic, b: Dynamic, q: Dynamic, r: Dynamic| {
-            riccati_solve(&ctx, "solve_riccati", [&a, &b, &q, &r], false)
-        },
-    );
-    engine.register_fn(
-        "solve_riccati_discrete",
-        |ctx: NativeCallContext, a: Dynamic, b: Dynamic, q: Dynamic, r: Dynamic| {
-            riccati_solve(&ctx, "solve_riccati_discrete", [&a, &b, &q, &r], true)
-        },
-    );
-    engine.register_fn(
-        "assign_poles",
-        |ctx: NativeCallContext, s: Dynamic, p: Dynamic| -> Rr<Dynamic> {
-            let f = "assign_poles";
-            let sys = to_system(&s, f, "sys")?;
-            let wanted = to_complex_vec(&p, f, "poles")?;
-            let r = poles::assign_poles(&sys.a, &sys.b, &wanted).map_err(num(f))?;
-            if r.eigenvector_condition > POLE_CONDITION_WARNING {
-                state::warn(
-                    &ctx,
-                    format!(
-                        "{f}: the closed-loop eigenvector matrix has condition number {:.2e}; \
-                         the placed poles are sensitive to small model errors\nhint: move the \
-                         poles apart or less far from the open-loop ones",
-                        r.eigenvector_condition
-                    ),
-                );
-            }
-            Ok(matrix_value(r.gain))
-        },
-    );
-    engine.register_fn(
-        "lq_regulator",
-        |s: Dynamic, q: Dynamic, r: Dynamic| -> Rr<Map> {
-            let f = "lq_regulator";
-            let sys = to_system(&s, f, "sys")?;
-            let q = to_matrix(&q, f, "Q")?;
-            let r = to_matrix(&r, f, "R")?;
-            let lq = lq::lq_regulator(&sys, &q, &r).map_err(num(f))?;
-            let mut m = Map::new();
-            m.insert("gain".into(), matrix_value(lq.gain));
-            m.insert("riccati".into(), matrix_value(lq.riccati));
-            m.insert(
-                "closed_loop_poles".into(),
-                Dynamic::from_array(complex_array(&lq.closed_loop_poles)),
-            );
-            Ok(m)
-        },
-    );
-    engine.register_fn(
-        "lq_estimator",
-        |s: Dynamic, w: Dynamic, v: Dynamic| -> Rr<Map> {
-            let f = "lq_estimator";
-            let sys = to_system(&s, f, "sys")?;
-            let w = to_matrix(&w, f, "W")?;
-            let v = to_matrix(&v, f, "V")?;
-            let e = lq::lq_estimator(&sys, &w, &v).map_err(num(f))?;
-            let mut m = Map::new();
-            m.insert("gain".into(), matrix_value(e.gain));
-            m.insert("covariance".into(), matrix_value(e.covariance));
-            m.insert(
-                "estimator_poles".into(),
-                Dynamic::from_array(complex_array(&e.estimator_poles)),
-            );
-            Ok(m)
-        },
-    );
-    engine.register_fn(
-        "with_state_feedback",
-        |s: Dynamic, k: Dynamic| -> Rr<Dynamic> {
-            let f = "with_state_feedback";
-            let sys = to_system(&s, f, "sys")?;
-            let k = to_matrix(&k, f, "K")?;
-            interconnect::state_feedback(&sys, &k)
-                .map(system_value)
-                .map_err(num(f))
-        },
-    );
-    engine.register_fn("close_loop", |g: Dynamic| close_loop(&g, None));
-    engine.register_fn("close_loop", |g: Dynamic, h: Dynamic| {
-        close_loop(&g, Some(&h))
-    });
     register_operators(engine);
+}
+
+/// A warning when the Riccati solution is ill-determined.
+fn riccati_warning(call: &Call, cond: f64) {
+    if cond > RICCATI_CONDITION_WARNING {
+        call.warn(format_args!(
+            "the solution is ill-determined (condition of the invariant-subspace basis \
+             {cond:.2e}); small changes in the data may change X a lot"
+        ));
+    }
+}
+
+crate::builtins! {
+    /// the solution X of the continuous Lyapunov equation A X + X Aᵀ + Q = 0
+    ///
+    /// A n×n, Q n×n symmetric. Unique when no two eigenvalues of A add up to 0; for a
+    /// stable A and Q ⪰ 0, X ⪰ 0 (e.g. the controllability Gramian for Q = B Bᵀ).
+    /// Bartels–Stewart method on the real Schur form.
+    ///
+    /// example:
+    ///     solve_lyapunov([[-2]], [[4]])   // [[1]]: −2x − 2x + 4 = 0
+    #[family = "design"]
+    fn solve_lyapunov(call, A: DMatrix<f64>, Q: DMatrix<f64>) -> Matrix {
+        sylvester::solve_lyapunov(&A, &Q)
+            .map(Matrix)
+            .map_err(call.num())
+    }
+
+    /// the solution X of the discrete Lyapunov equation A X Aᵀ − X + Q = 0
+    ///
+    /// A n×n, Q n×n symmetric. Unique when no product of two eigenvalues of A is 1.
+    ///
+    /// example:
+    ///     solve_lyapunov_discrete([[0.5]], [[3]])   // [[4]]: 0.25x − x + 3 = 0
+    #[family = "design"]
+    fn solve_lyapunov_discrete(call, A: DMatrix<f64>, Q: DMatrix<f64>) -> Matrix {
+        sylvester::solve_lyapunov_discrete(&A, &Q)
+            .map(Matrix)
+            .map_err(call.num())
+    }
+
+    /// the stabilizing solution X of the continuous Riccati equation AᵀX + XA − XBR⁻¹BᵀX + Q = 0
+    ///
+    /// A n×n, B n×m, Q n×n symmetric positive semidefinite, R m×m symmetric positive
+    /// definite. X makes A − BR⁻¹BᵀX stable; when none exists the error names the
+    /// uncontrollable or unobservable mode. Schur method (Laub 1979) plus one Newton step;
+    /// warns when X is ill-determined. See lq_regulator for the gain and poles.
+    ///
+    /// example:
+    ///     solve_riccati([[0, 1], [0, 0]], [[0], [1]], identity(2), [[1]])
+    #[family = "design"]
+    fn solve_riccati(call, A: DMatrix<f64>, B: DMatrix<f64>, Q: DMatrix<f64>, R: DMatrix<f64>)
+        -> Matrix
+    {
+        let sol = riccati::solve_riccati(&A, &B, &Q, &R).map_err(call.num())?;
+        riccati_warning(&call, sol.u11_condition);
+        Ok(Matrix(sol.x))
+    }
+
+    /// the stabilizing solution X of the discrete Riccati equation AᵀXA − X − AᵀXB(R + BᵀXB)⁻¹BᵀXA + Q = 0
+    ///
+    /// Shapes and conditions as solve_riccati; X makes A − BK Schur-stable with
+    /// K = (R + BᵀXB)⁻¹BᵀXA. Structure-preserving doubling plus Newton steps.
+    ///
+    /// example:
+    ///     solve_riccati_discrete([[1, 0.1], [0, 1]], [[0], [0.1]], identity(2), [[1]])
+    #[family = "design"]
+    fn solve_riccati_discrete(
+        call,
+        A: DMatrix<f64>,
+        B: DMatrix<f64>,
+        Q: DMatrix<f64>,
+        R: DMatrix<f64>,
+    ) -> Matrix {
+        let sol = riccati::solve_riccati_discrete(&A, &B, &Q, &R).map_err(call.num())?;
+        riccati_warning(&call, sol.u11_condition);
+        Ok(Matrix(sol.x))
+    }
+
+    /// a state-feedback gain K with eig(A − B K) = poles
+    ///
+    /// poles: an array of exactly n numbers or Complex values, closed under conjugation
+    /// (each complex pole with its conjugate). (A, B) must be controllable. One input:
+    /// orthogonal deflation (Miminis & Paige 1982); several inputs: the robust method of
+    /// Kautsky, Nichols & Van Dooren 1985, which keeps the closed-loop eigenvectors well
+    /// conditioned. Warns when the eigenvector condition number exceeds 1e5: the placed
+    /// poles are then sensitive to small model errors. Apply K with with_state_feedback.
+    ///
+    /// example:
+    ///     let K = assign_poles(plant, [complex(-1, 1), complex(-1, -1)]);
+    #[family = "design"]
+    fn assign_poles(call, sys: Model, poles: Poles) -> Matrix {
+        let r = poles::assign_poles(&sys.a, &sys.b, &poles.0).map_err(call.num())?;
+        if r.eigenvector_condition > POLE_CONDITION_WARNING {
+            call.warn(format_args!(
+                "the closed-loop eigenvector matrix has condition number {:.2e}; the placed \
+                 poles are sensitive to small model errors\nhint: move the poles apart or \
+                 less far from the open-loop ones",
+                r.eigenvector_condition
+            ));
+        }
+        Ok(Matrix(r.gain))
+    }
+
+    /// the linear-quadratic state-feedback regulator u = −K x
+    ///
+    /// Minimises ∫ (xᵀQx + uᵀRu) dt (discrete: the sum). Q n×n symmetric ⪰ 0, R m×m
+    /// symmetric ≻ 0. gain: K (m×n); riccati: the stabilizing Riccati solution X (cost
+    /// x₀ᵀXx₀); closed_loop_poles: eig(A − BK). A discrete model gets the discrete
+    /// regulator.
+    ///
+    /// example:
+    ///     let lq = lq_regulator(plant, identity(2), [[1]]);
+    ///     lq.gain
+    #[family = "design"]
+    fn lq_regulator(call, sys: Model, Q: DMatrix<f64>, R: DMatrix<f64>)
+        -> Map as "#{ gain, riccati, closed_loop_poles }"
+    {
+        let lq = lq::lq_regulator(&sys, &Q, &R).map_err(call.num())?;
+        let mut m = Map::new();
+        m.insert("gain".into(), matrix_value(lq.gain));
+        m.insert("riccati".into(), matrix_value(lq.riccati));
+        m.insert(
+            "closed_loop_poles".into(),
+            Dynamic::from_array(complex_array(&lq.closed_loop_poles)),
+        );
+        Ok(m)
+    }
+
+    /// the steady-state Kalman estimator gain L for process noise W and sensor noise V
+    ///
+    /// Noise model x' = Ax + Bu + w, y = Cx + Du + v with cov w = W (n×n, ⪰ 0) and
+    /// cov v = V (p×p, ≻ 0). Estimator x̂' = Ax̂ + Bu + L(y − Cx̂ − Du). gain: L (n×p);
+    /// covariance: the steady error covariance P; estimator_poles: eig(A − LC). Discrete
+    /// models: predictor form (P the a priori covariance).
+    ///
+    /// example:
+    ///     let kf = lq_estimator(plant, identity(2) * 0.1, [[0.01]]);
+    ///     kf.estimator_poles
+    #[family = "design"]
+    fn lq_estimator(call, sys: Model, W: DMatrix<f64>, V: DMatrix<f64>)
+        -> Map as "#{ gain, covariance, estimator_poles }"
+    {
+        let e = lq::lq_estimator(&sys, &W, &V).map_err(call.num())?;
+        let mut m = Map::new();
+        m.insert("gain".into(), matrix_value(e.gain));
+        m.insert("covariance".into(), matrix_value(e.covariance));
+        m.insert(
+            "estimator_poles".into(),
+            Dynamic::from_array(complex_array(&e.estimator_poles)),
+        );
+        Ok(m)
+    }
+
+    /// the model under state feedback u = −K x + r, with r the new input
+    ///
+    /// K: m×n (inputs × states). The result is x' = (A − BK)x + Br, y = (C − DK)x + Dr:
+    /// same states, inputs (now the reference r) and outputs. No estimator is involved:
+    /// the full state is assumed measured.
+    ///
+    /// example:
+    ///     let K = assign_poles(plant, [-2, -3]);
+    ///     let cl = with_state_feedback(plant, K);
+    ///     poles(cl)
+    #[family = "design"]
+    fn with_state_feedback(call, sys: Model, K: DMatrix<f64>) -> Dynamic as "System" {
+        interconnect::state_feedback(&sys, &K)
+            .map(system_value)
+            .map_err(call.num())
+    }
+
+    /// the negative feedback loop y = G(u − H y) around a forward model G
+    ///
+    /// Without feedback_path: unity feedback H = I (G square). feedback_path: a System,
+    /// TransferFunction, number or Matrix (a static gain), with as many inputs as G has
+    /// outputs and as many outputs as G has inputs. The result is (I + GH)⁻¹G; its states
+    /// are those of G then those of H. Two transfer functions give a TransferFunction
+    /// G/(1 + GH) (no cancellation), anything else a System. An error when I + D_G D_H is
+    /// singular (an algebraic loop).
+    ///
+    /// example:
+    ///     let g = transfer_function([1], [1, 1, 0]);
+    ///     close_loop(g)   // 1/(s² + s + 1)
+    #[family = "design"]
+    fn close_loop(call, forward: Forward) -> Dynamic as "System | TransferFunction" {
+        close_loop(&call, forward.0, None)
+    }
+    fn close_loop(call, forward: Forward, feedback_path: FeedbackPath)
+        -> Dynamic as "System | TransferFunction"
+    {
+        close_loop(&call, forward.0, Some(feedback_path.0))
+    }
 }

@@ -1,5 +1,5 @@
 //! Model built-ins: construction, conversion, properties, transforms, structure,
-//! equivalence, and model files.
+//! equivalence, and model files (`files.rs`).
 
 use crate::numeric::lti::system::StateSpace;
 use crate::numeric::lti::tf::TransferFunction as Tf;
@@ -7,51 +7,117 @@ use crate::numeric::lti::{
     balance, equivalence as eqv, modal, properties, realize, staircase, transform, zeros,
 };
 use crate::script::convert::{
-    complex_array, fail, matrix_value, num, system_value, to_count, to_f64, to_f64_vec, to_matrix,
-    to_str, to_system, type_name, Rr,
+    check_entries, complex_array, float_array, matrix_value, system_value, to_str, Rr,
 };
+use crate::script::declare::{Call, Model, Param};
+use crate::script::docs::Doc;
 use crate::script::state;
-use crate::script::types::{Complex, System, TransferFunction};
+use crate::script::types::{Complex, Matrix, System, TransferFunction};
 use nalgebra::DMatrix;
-use rhai::{Array, Dynamic, Engine, Map, NativeCallContext, INT};
+use rhai::{Array, Dynamic, Engine, Map, INT};
 
-mod docs;
 mod files;
-pub use docs::DOCS;
+pub use files::BUILTINS as FILE_BUILTINS;
 
-fn d_matrix(v: &Dynamic, p: usize, m: usize) -> Rr<DMatrix<f64>> {
-    // A plain 0 stands for the zero feedthrough of any size.
-    if let Some(x) = v
-        .as_int()
-        .ok()
-        .map(|i| i as f64)
-        .or_else(|| v.as_float().ok())
-    {
-        if x == 0.0 {
-            return Ok(DMatrix::zeros(p, m));
-        }
-    }
-    to_matrix(v, "state_space", "D")
+/// The help page of the model properties registered by hand in [`register`] (the
+/// functions are declared in `BUILTINS`).
+pub const DOCS: &[Doc] = &[Doc {
+    name: "A",
+    family: "models",
+    usage: "sys.A, sys.B, sys.C, sys.D → Matrix",
+    summary: "the model's matrices",
+    details: "Also sys.dt (0 when continuous), sys.order, sys.input_count, sys.output_count; \
+              for a TransferFunction tf.num, tf.den, tf.dt.",
+    example: "plant.A",
+}];
+
+/// Registers the model types and their properties (`sys.A`, `tf.num`, …).
+pub fn register(engine: &mut Engine) {
+    engine.register_type_with_name::<System>("System");
+    engine.register_type_with_name::<TransferFunction>("TransferFunction");
+    // Getters.
+    engine.register_get("A", |s: &mut System| matrix_value(s.0.a.clone()));
+    engine.register_get("B", |s: &mut System| matrix_value(s.0.b.clone()));
+    engine.register_get("C", |s: &mut System| matrix_value(s.0.c.clone()));
+    engine.register_get("D", |s: &mut System| matrix_value(s.0.d.clone()));
+    engine.register_get("dt", |s: &mut System| s.0.dt);
+    engine.register_get("order", |s: &mut System| s.0.order() as INT);
+    engine.register_get("input_count", |s: &mut System| s.0.inputs() as INT);
+    engine.register_get("output_count", |s: &mut System| s.0.outputs() as INT);
+    engine.register_get("num", |t: &mut TransferFunction| {
+        Dynamic::from_array(float_array(&t.0.num))
+    });
+    engine.register_get("den", |t: &mut TransferFunction| {
+        Dynamic::from_array(float_array(&t.0.den))
+    });
+    engine.register_get("dt", |t: &mut TransferFunction| t.0.dt);
+    engine.register_get("order", |t: &mut TransferFunction| t.0.order() as INT);
 }
 
-fn make_system(a: &Dynamic, b: &Dynamic, c: &Dynamic, d: &Dynamic, dt: f64) -> Rr<Dynamic> {
-    let f = "state_space";
-    let a = to_matrix(a, f, "A")?;
-    let b = to_matrix(b, f, "B")?;
-    let c = to_matrix(c, f, "C")?;
-    let d = d_matrix(d, c.nrows(), b.ncols())?;
+/// The feedthrough D of `state_space`: a matrix, or a plain 0 for the zero D of any size.
+struct Feedthrough(Option<DMatrix<f64>>);
+
+impl Param for Feedthrough {
+    const KIND: &'static str = "matrix | 0";
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        let x = v
+            .as_int()
+            .ok()
+            .map(|i| i as f64)
+            .or_else(|| v.as_float().ok());
+        if x == Some(0.0) {
+            return Ok(Feedthrough(None));
+        }
+        call.matrix(&v, arg).map(|d| Feedthrough(Some(d)))
+    }
+}
+
+/// The sample time of a discrete model, in seconds: a finite number > 0.
+struct SampleTime(f64);
+
+impl Param for SampleTime {
+    const KIND: &'static str = "seconds";
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        let dt = call.number(&v, arg)?;
+        if !(dt > 0.0 && dt.is_finite()) {
+            return Err(call.fail(format_args!(
+                "{arg} must be a positive sample time in seconds, found {dt}\nhint: leave {arg} \
+                 out for a continuous model"
+            )));
+        }
+        Ok(SampleTime(dt))
+    }
+}
+
+fn make_system(
+    call: &Call,
+    a: DMatrix<f64>,
+    b: DMatrix<f64>,
+    c: DMatrix<f64>,
+    d: Feedthrough,
+    dt: f64,
+) -> Rr<Dynamic> {
+    let d = d.0.unwrap_or_else(|| DMatrix::zeros(c.nrows(), b.ncols()));
     StateSpace::new(a, b, c, d, dt)
         .map(system_value)
-        .map_err(num(f))
+        .map_err(call.num())
 }
 
 fn tf_value(t: Tf) -> Dynamic {
     Dynamic::from(TransferFunction(t))
 }
 
-fn warn_all(ctx: &NativeCallContext, w: &[String]) {
+/// Passes on warnings the numerics worded themselves (some name the built-in already).
+fn warn_all(call: &Call, w: &[String]) {
     for m in w {
-        state::warn(ctx, m.clone());
+        state::warn(call.ctx(), m.clone());
+    }
+}
+
+/// Warns when a transform T is ill-conditioned.
+fn warn_condition(call: &Call, cond: f64) {
+    if let Some(w) = transform::condition_warning(call.name, cond) {
+        state::warn(call.ctx(), w);
     }
 }
 
@@ -62,21 +128,19 @@ fn realization(system: StateSpace, t: DMatrix<f64>) -> Map {
     m
 }
 
-fn names_of(v: &Dynamic, what: &str, count: usize) -> Rr<Vec<String>> {
+fn names_of(call: &Call, v: &Dynamic, what: &str, count: usize) -> Rr<Vec<String>> {
     let Some(a) = v.read_lock::<Array>() else {
-        return Err(fail(format!(
-            "name_signals: {what} must be an array of strings"
-        )));
+        return Err(call.fail(format_args!("{what} must be an array of strings")));
     };
     if a.len() != count {
-        return Err(fail(format!(
-            "name_signals: {what} has {} names, but the model has {count}",
+        return Err(call.fail(format_args!(
+            "{what} has {} names, but the model has {count}",
             a.len()
         )));
     }
     a.iter()
         .enumerate()
-        .map(|(k, s)| to_str(s, "name_signals", &format!("{what}[{k}]")))
+        .map(|(k, s)| to_str(s, call.name, &format!("{what}[{k}]")))
         .collect()
 }
 
@@ -92,282 +156,347 @@ fn mode_map(m: &properties::Mode) -> Map {
     out
 }
 
-/// Registers the model built-ins.
-pub fn register(engine: &mut Engine) {
-    engine.register_type_with_name::<System>("System");
-    engine.register_type_with_name::<TransferFunction>("TransferFunction");
+fn realize_rcond(t: &DMatrix<f64>) -> f64 {
+    transform::rcond(t).max(f64::MIN_POSITIVE)
+}
 
-    // Construction and conversion.
-    engine.register_fn(
-        "state_space",
-        |a: Dynamic, b: Dynamic, c: Dynamic, d: Dynamic| make_system(&a, &b, &c, &d, 0.0),
-    );
-    engine.register_fn(
-        "state_space",
-        |a: Dynamic, b: Dynamic, c: Dynamic, d: Dynamic, dt: Dynamic| -> Rr<Dynamic> {
-            let dt = to_f64(&dt, "state_space", "dt")?;
-            if !(dt > 0.0 && dt.is_finite()) {
-                return Err(fail(format!(
-                    "state_space: dt must be a positive sample time in seconds, found {dt}\nhint: \
-                     leave dt out for a continuous model"
-                )));
-            }
-            make_system(&a, &b, &c, &d, dt)
-        },
-    );
-    engine.register_fn("state_space", |g: Dynamic| -> Rr<Dynamic> {
-        to_system(&g, "state_space", "tf").map(system_value)
-    });
-    engine.register_fn(
-        "transfer_function",
-        |n: Dynamic, d: Dynamic| -> Rr<Dynamic> {
-            let f = "transfer_function";
-            Tf::new(&to_f64_vec(&n, f, "num")?, &to_f64_vec(&d, f, "den")?, 0.0)
-                .map(tf_value)
-                .map_err(num(f))
-        },
-    );
-    engine.register_fn(
-        "transfer_function",
-        |n: Dynamic, d: Dynamic, dt: Dynamic| -> Rr<Dynamic> {
-            let f = "transfer_function";
-            let dt = to_f64(&dt, f, "dt")?;
-            if !(dt > 0.0 && dt.is_finite()) {
-                return Err(fail(format!(
-                    "transfer_function: dt must be a positive sample time, found {dt}"
-                )));
-            }
-            Tf::new(&to_f64_vec(&n, f, "num")?, &to_f64_vec(&d, f, "den")?, dt)
-                .map(tf_value)
-                .map_err(num(f))
-        },
-    );
-    engine.register_fn("to_transfer_function", |s: Dynamic| -> Rr<Dynamic> {
-        let f = "to_transfer_function";
-        let sys = to_system(&s, f, "sys")?;
-        let grid = realize::to_transfer_function(&sys).map_err(num(f))?;
+crate::builtins! {
+    /// a state-space model x' = Ax + Bu, y = Cx + Du (discrete with sample time dt)
+    ///
+    /// A n×n, B n×m, C p×n, D p×m (a plain 0 means the zero D). dt in seconds; leave it
+    /// out for a continuous model. From a TransferFunction: a minimal realization.
+    ///
+    /// example:
+    ///     let plant = state_space([[0, 1], [-4, -0.8]], [[0], [1]], [[1, 0]], 0);
+    #[family = "models"]
+    fn state_space(call, A: DMatrix<f64>, B: DMatrix<f64>, C: DMatrix<f64>, D: Feedthrough)
+        -> Dynamic as "System"
+    {
+        make_system(&call, A, B, C, D, 0.0)
+    }
+    fn state_space(
+        call,
+        A: DMatrix<f64>,
+        B: DMatrix<f64>,
+        C: DMatrix<f64>,
+        D: Feedthrough,
+        dt: SampleTime,
+    ) -> Dynamic as "System" {
+        make_system(&call, A, B, C, D, dt.0)
+    }
+    fn state_space(call, tf: Model) -> Dynamic as "System" {
+        Ok(system_value(tf))
+    }
+
+    /// a rational transfer function, coefficients highest power first
+    ///
+    /// The denominator is scaled to be monic. Must be proper (numerator degree ≤
+    /// denominator degree). With dt (seconds) the variable is z.
+    ///
+    /// example:
+    ///     let g = transfer_function([2, 1], [1, 3, 2]);
+    #[family = "models"]
+    fn transfer_function(call, num: Vec<f64>, den: Vec<f64>) -> Dynamic as "TransferFunction" {
+        Tf::new(&num, &den, 0.0).map(tf_value).map_err(call.num())
+    }
+    fn transfer_function(call, num: Vec<f64>, den: Vec<f64>, dt: SampleTime)
+        -> Dynamic as "TransferFunction"
+    {
+        Tf::new(&num, &den, dt.0).map(tf_value).map_err(call.num())
+    }
+
+    /// the transfer function of each channel (grid [output][input] for MIMO)
+    ///
+    /// Per channel: a minimal realization, its poles (eigenvalues) and zeros (generalized
+    /// eigenvalues of the system pencil), and the gain from one evaluation — numerically
+    /// sound at any order.
+    ///
+    /// example:
+    ///     to_transfer_function(state_space([[-2]], [[1]], [[3]], 0))   // 3/(s + 2)
+    #[family = "models"]
+    fn to_transfer_function(call, sys: Model)
+        -> Dynamic as "TransferFunction (SISO) | [[TransferFunction]]"
+    {
+        let grid = realize::to_transfer_function(&sys).map_err(call.num())?;
         if sys.inputs() == 1 && sys.outputs() == 1 {
             if let Some(t) = grid.into_iter().next().and_then(|r| r.into_iter().next()) {
                 return Ok(tf_value(t));
             }
-            return Err(fail("to_transfer_function: empty model"));
+            return Err(call.fail("empty model"));
         }
         Ok(Dynamic::from_array(
             grid.into_iter()
                 .map(|row| Dynamic::from_array(row.into_iter().map(tf_value).collect()))
                 .collect(),
         ))
-    });
-    engine.register_fn(
-        "channel",
-        |s: Dynamic, i: Dynamic, j: Dynamic| -> Rr<Dynamic> {
-            let f = "channel";
-            let sys = to_system(&s, f, "sys")?;
-            let (i, j) = (to_count(&i, f, "output")?, to_count(&j, f, "input")?);
-            sys.channel(i, j).map(system_value).map_err(num(f))
-        },
-    );
-    engine.register_fn("name_signals", |s: Dynamic, names: Map| -> Rr<Dynamic> {
-        let mut sys = to_system(&s, "name_signals", "sys")?;
+    }
+
+    /// the single-input single-output model from one input to one output
+    ///
+    /// 0-based indices. As a method: sys.channel(output, input).
+    ///
+    /// example:
+    ///     let m = state_space([[-1]], [[1, 2]], [[1]], [[0, 0]]);
+    ///     channel(m, 0, 1)
+    #[family = "models"]
+    fn channel(call, sys: Model, output: usize, input: usize) -> Dynamic as "System" {
+        sys.channel(output, input)
+            .map(system_value)
+            .map_err(call.num())
+    }
+
+    /// a copy of the model with names for its signals (used in display and plots)
+    ///
+    /// names: #{ inputs, outputs, states }, each entry an array of strings, one per
+    /// signal; any may be left out.
+    ///
+    /// example:
+    ///     let p = name_signals(plant, #{ inputs: ["force"], outputs: ["position"] });
+    #[family = "models"]
+    fn name_signals(call, sys: Model, names: Map) -> Dynamic as "System" {
+        let mut sys = sys;
         for k in names.keys() {
             if !["inputs", "outputs", "states"].contains(&k.as_str()) {
-                return Err(fail(format!(
-                    "name_signals: unknown key '{k}' (use inputs, outputs, states)"
+                return Err(call.fail(format_args!(
+                    "unknown key '{k}' (use inputs, outputs, states)"
                 )));
             }
         }
         if let Some(v) = names.get("inputs") {
-            sys.names.inputs = names_of(v, "inputs", sys.inputs())?;
+            sys.names.inputs = names_of(&call, v, "inputs", sys.inputs())?;
         }
         if let Some(v) = names.get("outputs") {
-            sys.names.outputs = names_of(v, "outputs", sys.outputs())?;
+            sys.names.outputs = names_of(&call, v, "outputs", sys.outputs())?;
         }
         if let Some(v) = names.get("states") {
-            sys.names.states = names_of(v, "states", sys.order())?;
+            sys.names.states = names_of(&call, v, "states", sys.order())?;
         }
         Ok(system_value(sys))
-    });
+    }
 
-    // Getters.
-    engine.register_get("A", |s: &mut System| matrix_value(s.0.a.clone()));
-    engine.register_get("B", |s: &mut System| matrix_value(s.0.b.clone()));
-    engine.register_get("C", |s: &mut System| matrix_value(s.0.c.clone()));
-    engine.register_get("D", |s: &mut System| matrix_value(s.0.d.clone()));
-    engine.register_get("dt", |s: &mut System| s.0.dt);
-    engine.register_get("order", |s: &mut System| s.0.order() as INT);
-    engine.register_get("input_count", |s: &mut System| s.0.inputs() as INT);
-    engine.register_get("output_count", |s: &mut System| s.0.outputs() as INT);
-    engine.register_get("num", |t: &mut TransferFunction| {
-        Dynamic::from_array(crate::script::convert::float_array(&t.0.num))
-    });
-    engine.register_get("den", |t: &mut TransferFunction| {
-        Dynamic::from_array(crate::script::convert::float_array(&t.0.den))
-    });
-    engine.register_get("dt", |t: &mut TransferFunction| t.0.dt);
-    engine.register_get("order", |t: &mut TransferFunction| t.0.order() as INT);
-
-    // Properties.
-    engine.register_fn("poles", |s: Dynamic| -> Rr<Array> {
-        let sys = to_system(&s, "poles", "sys")?;
+    /// the poles (eigenvalues of A), ascending real part then imaginary part
+    ///
+    /// example:
+    ///     poles(plant)
+    #[family = "models"]
+    fn poles(call, sys: Model) -> Array as "[Complex]" {
         properties::poles(&sys)
             .map(|v| complex_array(&v))
-            .map_err(num("poles"))
-    });
-    engine.register_fn("zeros", |s: Dynamic| -> Rr<Array> {
-        let sys = to_system(&s, "zeros", "sys")?;
+            .map_err(call.num())
+    }
+
+    /// transmission zeros, square or non-square models
+    ///
+    /// Finite generalized eigenvalues of the system pencil [[A, B], [C, D]] −
+    /// λ[[I, 0], [0, 0]] after the reduction of Emami-Naeini & Van Dooren 1982, computed by
+    /// the QZ algorithm. For a non-minimal model the uncontrollable or unobservable modes
+    /// appear as (decoupling) zeros.
+    ///
+    /// example:
+    ///     zeros(transfer_function([1, 2], [1, 3, 5]))   // [-2+0j]
+    #[family = "models"]
+    fn zeros(call, sys: Model) -> Array as "[Complex]" {
         zeros::transmission_zeros(&sys.a, &sys.b, &sys.c, &sys.d)
             .map(|v| complex_array(&v))
-            .map_err(num("zeros"))
-    });
-    engine.register_fn("dc_gain", |s: Dynamic| -> Rr<Dynamic> {
-        let sys = to_system(&s, "dc_gain", "sys")?;
-        properties::dc_gain(&sys)
-            .map(matrix_value)
-            .map_err(num("dc_gain"))
-    });
-    engine.register_fn("is_stable", |s: Dynamic| -> Rr<bool> {
-        let sys = to_system(&s, "is_stable", "sys")?;
-        properties::is_stable(&sys).map_err(num("is_stable"))
-    });
-    engine.register_fn("modes", |s: Dynamic| -> Rr<Array> {
-        let sys = to_system(&s, "modes", "sys")?;
-        let m = properties::modes(&sys).map_err(num("modes"))?;
+            .map_err(call.num())
+    }
+
+    /// steady-state gain D − CA⁻¹B (discrete: D + C(I − A)⁻¹B)
+    ///
+    /// A pole at the origin (z = 1 when discrete) in a channel makes that entry ±inf, the
+    /// sign of the ramp a positive step produces; uncontrollable or unobservable
+    /// integrators do not count.
+    ///
+    /// example:
+    ///     dc_gain(transfer_function([4], [1, 2]))   // 2
+    #[family = "models"]
+    fn dc_gain(call, sys: Model) -> Matrix {
+        properties::dc_gain(&sys).map(Matrix).map_err(call.num())
+    }
+
+    /// every pole strictly in the left half plane (|z| < 1 when discrete)
+    ///
+    /// Poles on the boundary (integrators, undamped modes) count as not stable.
+    ///
+    /// example:
+    ///     is_stable(plant)
+    #[family = "models"]
+    fn is_stable(call, sys: Model) -> bool {
+        properties::is_stable(&sys).map_err(call.num())
+    }
+
+    /// damping ratio, natural frequency (rad/s) and time constant (s) of each mode
+    ///
+    /// A complex pair is listed once (its member with positive imaginary part). Discrete
+    /// poles are mapped by s = ln(z)/dt. time_constant = −1/Re(s): negative for a growing
+    /// mode, inf on the stability boundary.
+    ///
+    /// example:
+    ///     modes(plant)
+    #[family = "models"]
+    fn modes(call, sys: Model)
+        -> Array as "[#{ pole, damping, natural_frequency, time_constant }]"
+    {
+        let m = properties::modes(&sys).map_err(call.num())?;
         Ok(m.iter().map(|x| Dynamic::from_map(mode_map(x))).collect())
-    });
-    engine.register_fn("markov_parameters", |s: Dynamic, k: Dynamic| -> Rr<Array> {
-        let sys = to_system(&s, "markov_parameters", "sys")?;
-        let k = to_count(&k, "markov_parameters", "count")?;
-        if k > 100_000 {
-            return Err(fail("markov_parameters: count must be at most 100000"));
+    }
+
+    /// the first count Markov parameters D, CB, CAB, CA²B, …
+    ///
+    /// count: at most 100000.
+    ///
+    /// example:
+    ///     markov_parameters(plant, 4)
+    #[family = "models"]
+    fn markov_parameters(call, sys: Model, count: usize) -> Array as "[Matrix]" {
+        if count > 100_000 {
+            return Err(call.fail("count must be at most 100000"));
         }
         let each = sys.d.nrows() * sys.d.ncols();
-        crate::script::convert::check_entries("markov_parameters", k, each)?;
+        check_entries(call.name, count, each)?;
         Ok(sys
-            .markov_parameters(k)
+            .markov_parameters(count)
             .into_iter()
             .map(matrix_value)
             .collect())
-    });
+    }
 
-    // Transforms.
-    engine.register_fn(
-        "transform_state",
-        |ctx: NativeCallContext, s: Dynamic, t: Dynamic| -> Rr<Dynamic> {
-            let f = "transform_state";
-            let sys = to_system(&s, f, "sys")?;
-            let t = to_matrix(&t, f, "T")?;
-            let (new, cond) = transform::transform_state(&sys, &t).map_err(num(f))?;
-            warn_all(
-                &ctx,
-                &transform::condition_warning(f, cond)
-                    .into_iter()
-                    .collect::<Vec<_>>(),
-            );
-            Ok(system_value(new))
-        },
-    );
-    engine.register_fn(
-        "modal_realization",
-        |ctx: NativeCallContext, s: Dynamic| -> Rr<Map> {
-            let f = "modal_realization";
-            let m = modal::modal_realization(&to_system(&s, f, "sys")?).map_err(num(f))?;
-            warn_all(&ctx, &m.warnings);
-            Ok(realization(m.system, m.t))
-        },
-    );
-    engine.register_fn(
-        "jordan_realization",
-        |ctx: NativeCallContext, s: Dynamic| -> Rr<Map> {
-            let f = "jordan_realization";
-            let m = modal::jordan_realization(&to_system(&s, f, "sys")?).map_err(num(f))?;
-            warn_all(&ctx, &m.warnings);
-            Ok(realization(m.system, m.t))
-        },
-    );
-    engine.register_fn(
-        "controllable_realization",
-        |ctx: NativeCallContext, s: Dynamic| -> Rr<Map> {
-            let f = "controllable_realization";
-            let (sys, t, cond) =
-                realize::controllable_companion(&to_system(&s, f, "sys")?).map_err(num(f))?;
-            warn_all(
-                &ctx,
-                &transform::condition_warning(f, cond)
-                    .into_iter()
-                    .collect::<Vec<_>>(),
-            );
-            Ok(realization(sys, t))
-        },
-    );
-    engine.register_fn(
-        "observable_realization",
-        |ctx: NativeCallContext, s: Dynamic| -> Rr<Map> {
-            let f = "observable_realization";
-            let (sys, t, cond) =
-                realize::observable_companion(&to_system(&s, f, "sys")?).map_err(num(f))?;
-            warn_all(
-                &ctx,
-                &transform::condition_warning(f, cond)
-                    .into_iter()
-                    .collect::<Vec<_>>(),
-            );
-            Ok(realization(sys, t))
-        },
-    );
-    engine.register_fn(
-        "balanced_realization",
-        |ctx: NativeCallContext, s: Dynamic| -> Rr<Map> {
-            let f = "balanced_realization";
-            let sys = to_system(&s, f, "sys")?;
-            let b = balance::balanced_realization(&sys.a, &sys.b, &sys.c, &sys.d, sys.dt)
-                .map_err(num(f))?;
-            let new = sys.with_matrices(b.a, b.b, b.c, b.d).map_err(num(f))?;
-            let cond = 1.0 / realize_rcond(&b.t);
-            warn_all(
-                &ctx,
-                &transform::condition_warning(f, cond)
-                    .into_iter()
-                    .collect::<Vec<_>>(),
-            );
-            let mut m = realization(new, b.t);
-            m.insert(
-                "hankel_singular_values".into(),
-                Dynamic::from_array(crate::script::convert::float_array(
-                    &b.hankel_singular_values,
-                )),
-            );
-            Ok(m)
-        },
-    );
-    engine.register_fn(
-        "balanced_truncation",
-        |s: Dynamic, order: Dynamic| -> Rr<Map> {
-            let f = "balanced_truncation";
-            let sys = to_system(&s, f, "sys")?;
-            let order = to_count(&order, f, "order")?;
-            let r = balance::balanced_truncation(&sys.a, &sys.b, &sys.c, &sys.d, sys.dt, order)
-                .map_err(num(f))?;
-            let mut new = StateSpace::new(r.a, r.b, r.c, r.d, sys.dt).map_err(num(f))?;
-            new.names.inputs = sys.names.inputs.clone();
-            new.names.outputs = sys.names.outputs.clone();
-            let mut m = Map::new();
-            m.insert("system".into(), system_value(new));
-            m.insert(
-                "hankel_singular_values".into(),
-                Dynamic::from_array(crate::script::convert::float_array(
-                    &r.hankel_singular_values,
-                )),
-            );
-            m.insert("error_bound".into(), Dynamic::from_float(r.error_bound));
-            Ok(m)
-        },
-    );
-    engine.register_fn("minimal_realization", |s: Dynamic| -> Rr<Map> {
-        let f = "minimal_realization";
-        let sys = to_system(&s, f, "sys")?;
-        let r =
-            staircase::minimal_realization(&sys.a, &sys.b, &sys.c, &sys.d, None).map_err(num(f))?;
-        let new = sys.with_matrices(r.a, r.b, r.c, r.d).map_err(num(f))?;
+    /// the model in new coordinates x = T z: (T⁻¹AT, T⁻¹B, CT, D)
+    ///
+    /// Refuses a singular or numerically singular T; warns when cond(T) > 1e8.
+    ///
+    /// example:
+    ///     transform_state(plant, [[1, 0], [1, 1]])
+    #[family = "transforms"]
+    fn transform_state(call, sys: Model, T: DMatrix<f64>) -> Dynamic as "System" {
+        let (new, cond) = transform::transform_state(&sys, &T).map_err(call.num())?;
+        warn_condition(&call, cond);
+        Ok(system_value(new))
+    }
+
+    /// real block-diagonal form: real poles on the diagonal, pairs as [[σ, ω], [−ω, σ]]
+    ///
+    /// Ordered real Schur form, then block diagonalisation by Sylvester equations (Bavely
+    /// & Stewart 1979); repeated or nearly repeated eigenvalues stay in one coupled block
+    /// with a warning, rather than inverting an ill-conditioned eigenvector matrix. Blocks
+    /// in ascending real part.
+    ///
+    /// example:
+    ///     let m = modal_realization(plant);
+    ///     m.system.A
+    #[family = "transforms"]
+    fn modal_realization(call, sys: Model) -> Map as "#{ system, transform }" {
+        let m = modal::modal_realization(&sys).map_err(call.num())?;
+        warn_all(&call, &m.warnings);
+        Ok(realization(m.system, m.t))
+    }
+
+    /// controllable companion form (SISO): first row −a₁…−aₙ, B = e₁
+    ///
+    /// Requires a controllable single-input single-output model; warns when T is
+    /// ill-conditioned (companion forms are, at high order).
+    ///
+    /// example:
+    ///     controllable_realization(plant).system
+    #[family = "transforms"]
+    fn controllable_realization(call, sys: Model) -> Map as "#{ system, transform }" {
+        let (sys, t, cond) = realize::controllable_companion(&sys).map_err(call.num())?;
+        warn_condition(&call, cond);
+        Ok(realization(sys, t))
+    }
+
+    /// observable companion form (SISO): first column −a₁…−aₙ, C = e₁ᵀ
+    ///
+    /// Requires an observable single-input single-output model; warns when T is
+    /// ill-conditioned.
+    ///
+    /// example:
+    ///     observable_realization(plant).system
+    #[family = "transforms"]
+    fn observable_realization(call, sys: Model) -> Map as "#{ system, transform }" {
+        let (sys, t, cond) = realize::observable_companion(&sys).map_err(call.num())?;
+        warn_condition(&call, cond);
+        Ok(realization(sys, t))
+    }
+
+    /// real Jordan form (always warns: the Jordan structure is numerically fragile)
+    ///
+    /// Like modal_realization, with each cluster of a repeated real eigenvalue put into
+    /// Jordan chains (ones on the superdiagonal), decided by numerical ranks.
+    ///
+    /// example:
+    ///     jordan_realization(plant)
+    #[family = "transforms"]
+    fn jordan_realization(call, sys: Model) -> Map as "#{ system, transform }" {
+        let m = modal::jordan_realization(&sys).map_err(call.num())?;
+        warn_all(&call, &m.warnings);
+        Ok(realization(m.system, m.t))
+    }
+
+    /// balanced form: both Gramians equal diag(Hankel singular values)
+    ///
+    /// Square-root method on Cholesky factors of the Gramians (Hammarling 1982; Laub,
+    /// Heath, Paige & Ward 1987). Needs a stable, minimal model.
+    ///
+    /// example:
+    ///     balanced_realization(plant).hankel_singular_values
+    #[family = "transforms"]
+    fn balanced_realization(call, sys: Model)
+        -> Map as "#{ system, transform, hankel_singular_values }"
+    {
+        let b = balance::balanced_realization(&sys.a, &sys.b, &sys.c, &sys.d, sys.dt)
+            .map_err(call.num())?;
+        let new = sys.with_matrices(b.a, b.b, b.c, b.d).map_err(call.num())?;
+        warn_condition(&call, 1.0 / realize_rcond(&b.t));
+        let mut m = realization(new, b.t);
+        m.insert(
+            "hankel_singular_values".into(),
+            Dynamic::from_array(float_array(&b.hankel_singular_values)),
+        );
+        Ok(m)
+    }
+
+    /// a reduced model of the given order, with the error bound 2·Σ discarded σ
+    ///
+    /// error_bound bounds the largest frequency-response error (H∞ norm of the
+    /// difference; Glover 1984). Needs a stable model.
+    ///
+    /// example:
+    ///     let r = balanced_truncation(plant, 2);
+    ///     r.error_bound
+    #[family = "transforms"]
+    fn balanced_truncation(call, sys: Model, order: usize)
+        -> Map as "#{ system, hankel_singular_values, error_bound }"
+    {
+        let r = balance::balanced_truncation(&sys.a, &sys.b, &sys.c, &sys.d, sys.dt, order)
+            .map_err(call.num())?;
+        let mut new = StateSpace::new(r.a, r.b, r.c, r.d, sys.dt).map_err(call.num())?;
+        new.names.inputs = sys.names.inputs.clone();
+        new.names.outputs = sys.names.outputs.clone();
+        let mut m = Map::new();
+        m.insert("system".into(), system_value(new));
+        m.insert(
+            "hankel_singular_values".into(),
+            Dynamic::from_array(float_array(&r.hankel_singular_values)),
+        );
+        m.insert("error_bound".into(), Dynamic::from_float(r.error_bound));
+        Ok(m)
+    }
+
+    /// removes uncontrollable and unobservable states (orthogonal staircase)
+    ///
+    /// Controllability then observability staircase (Van Dooren 1981, Varga 1981); rank
+    /// decisions by SVD relative to ‖[A B]‖, never by powers of A.
+    ///
+    /// example:
+    ///     minimal_realization(plant).removed
+    #[family = "transforms"]
+    fn minimal_realization(call, sys: Model)
+        -> Map as "#{ system, removed, uncontrollable_removed, unobservable_removed }"
+    {
+        let r = staircase::minimal_realization(&sys.a, &sys.b, &sys.c, &sys.d, None)
+            .map_err(call.num())?;
+        let new = sys.with_matrices(r.a, r.b, r.c, r.d).map_err(call.num())?;
         let mut m = Map::new();
         m.insert("system".into(), system_value(new));
         m.insert("removed".into(), Dynamic::from_int(r.removed as INT));
@@ -380,102 +509,160 @@ pub fn register(engine: &mut Engine) {
             Dynamic::from_int(r.unobservable_removed as INT),
         );
         Ok(m)
-    });
-    engine.register_fn(
-        "kalman_decomposition",
-        |ctx: NativeCallContext, s: Dynamic| -> Rr<Map> {
-            let f = "kalman_decomposition";
-            let sys = to_system(&s, f, "sys")?;
-            let k = staircase::kalman_decomposition(&sys.a, &sys.b, &sys.c, &sys.d, None)
-                .map_err(num(f))?;
-            let new = sys.with_matrices(k.a, k.b, k.c, k.d).map_err(num(f))?;
-            let cond = 1.0 / realize_rcond(&k.t);
-            warn_all(
-                &ctx,
-                &transform::condition_warning(f, cond)
-                    .into_iter()
-                    .collect::<Vec<_>>(),
-            );
-            let mut m = realization(new, k.t);
-            let sizes = k.sizes.as_array();
-            for (name, v) in [
-                ("controllable_observable", sizes[0]),
-                ("controllable_unobservable", sizes[1]),
-                ("uncontrollable_observable", sizes[2]),
-                ("uncontrollable_unobservable", sizes[3]),
-            ] {
-                m.insert(name.into(), Dynamic::from_int(v as INT));
-            }
-            Ok(m)
-        },
-    );
+    }
 
-    // Structure.
-    engine.register_fn("controllability_matrix", |s: Dynamic| -> Rr<Dynamic> {
-        let f = "controllability_matrix";
-        let sys = to_system(&s, f, "sys")?;
+    /// coordinates that separate the four controllable/observable parts
+    ///
+    /// State order: controllable-observable, controllable-unobservable,
+    /// uncontrollable-observable, uncontrollable-unobservable; the map gives each part's
+    /// dimension.
+    ///
+    /// example:
+    ///     kalman_decomposition(plant)
+    #[family = "transforms"]
+    fn kalman_decomposition(call, sys: Model)
+        -> Map as "#{ system, transform, controllable_observable, controllable_unobservable, uncontrollable_observable, uncontrollable_unobservable }"
+    {
+        let k = staircase::kalman_decomposition(&sys.a, &sys.b, &sys.c, &sys.d, None)
+            .map_err(call.num())?;
+        let new = sys.with_matrices(k.a, k.b, k.c, k.d).map_err(call.num())?;
+        warn_condition(&call, 1.0 / realize_rcond(&k.t));
+        let mut m = realization(new, k.t);
+        let sizes = k.sizes.as_array();
+        for (name, v) in [
+            ("controllable_observable", sizes[0]),
+            ("controllable_unobservable", sizes[1]),
+            ("uncontrollable_observable", sizes[2]),
+            ("uncontrollable_unobservable", sizes[3]),
+        ] {
+            m.insert(name.into(), Dynamic::from_int(v as INT));
+        }
+        Ok(m)
+    }
+
+    /// [B, AB, …, Aⁿ⁻¹B] (for display; decisions use the staircase)
+    ///
+    /// example:
+    ///     controllability_matrix(plant)
+    #[family = "transforms"]
+    fn controllability_matrix(call, sys: Model) -> Matrix {
         staircase::controllability_matrix(&sys.a, &sys.b)
-            .map(matrix_value)
-            .map_err(num(f))
-    });
-    engine.register_fn("observability_matrix", |s: Dynamic| -> Rr<Dynamic> {
-        let f = "observability_matrix";
-        let sys = to_system(&s, f, "sys")?;
+            .map(Matrix)
+            .map_err(call.num())
+    }
+
+    /// [C; CA; …; CAⁿ⁻¹] (for display; decisions use the staircase)
+    ///
+    /// example:
+    ///     observability_matrix(plant)
+    #[family = "transforms"]
+    fn observability_matrix(call, sys: Model) -> Matrix {
         staircase::observability_matrix(&sys.a, &sys.c)
-            .map(matrix_value)
-            .map_err(num(f))
-    });
-    engine.register_fn("is_controllable", |s: Dynamic| -> Rr<bool> {
-        let f = "is_controllable";
-        let sys = to_system(&s, f, "sys")?;
-        staircase::is_controllable(&sys.a, &sys.b, None).map_err(num(f))
-    });
-    engine.register_fn("is_observable", |s: Dynamic| -> Rr<bool> {
-        let f = "is_observable";
-        let sys = to_system(&s, f, "sys")?;
-        staircase::is_observable(&sys.a, &sys.c, None).map_err(num(f))
-    });
-    engine.register_fn("uncontrollable_modes", |s: Dynamic| -> Rr<Array> {
-        let f = "uncontrollable_modes";
-        let sys = to_system(&s, f, "sys")?;
+            .map(Matrix)
+            .map_err(call.num())
+    }
+
+    /// whether every mode can be moved by the inputs
+    ///
+    /// Orthogonal controllability staircase with SVD rank decisions at
+    /// 10·max(n, m)·ε·‖[A B]‖; see uncontrollable_modes for which modes fail.
+    ///
+    /// example:
+    ///     is_controllable(plant)
+    #[family = "transforms"]
+    fn is_controllable(call, sys: Model) -> bool {
+        staircase::is_controllable(&sys.a, &sys.b, None).map_err(call.num())
+    }
+
+    /// whether every mode shows in the outputs
+    ///
+    /// Dual of is_controllable.
+    ///
+    /// example:
+    ///     is_observable(plant)
+    #[family = "transforms"]
+    fn is_observable(call, sys: Model) -> bool {
+        staircase::is_observable(&sys.a, &sys.c, None).map_err(call.num())
+    }
+
+    /// the eigenvalues of the uncontrollable part
+    ///
+    /// example:
+    ///     uncontrollable_modes(plant)
+    #[family = "transforms"]
+    fn uncontrollable_modes(call, sys: Model) -> Array as "[Complex]" {
         staircase::uncontrollable_modes(&sys.a, &sys.b, None)
             .map(|v| complex_array(&v))
-            .map_err(num(f))
-    });
-    engine.register_fn("unobservable_modes", |s: Dynamic| -> Rr<Array> {
-        let f = "unobservable_modes";
-        let sys = to_system(&s, f, "sys")?;
+            .map_err(call.num())
+    }
+
+    /// the eigenvalues of the unobservable part
+    ///
+    /// example:
+    ///     unobservable_modes(plant)
+    #[family = "transforms"]
+    fn unobservable_modes(call, sys: Model) -> Array as "[Complex]" {
         staircase::unobservable_modes(&sys.a, &sys.c, None)
             .map(|v| complex_array(&v))
-            .map_err(num(f))
-    });
-    engine.register_fn("controllability_gramian", |s: Dynamic| -> Rr<Dynamic> {
-        let f = "controllability_gramian";
-        let sys = to_system(&s, f, "sys")?;
-        balance::controllability_gramian(&sys.a, &sys.b, sys.dt)
-            .map(matrix_value)
-            .map_err(num(f))
-    });
-    engine.register_fn("observability_gramian", |s: Dynamic| -> Rr<Dynamic> {
-        let f = "observability_gramian";
-        let sys = to_system(&s, f, "sys")?;
-        balance::observability_gramian(&sys.a, &sys.c, sys.dt)
-            .map(matrix_value)
-            .map_err(num(f))
-    });
-    engine.register_fn("hankel_singular_values", |s: Dynamic| -> Rr<Array> {
-        let f = "hankel_singular_values";
-        let sys = to_system(&s, f, "sys")?;
-        balance::hankel_singular_values(&sys.a, &sys.b, &sys.c, sys.dt)
-            .map(|v| crate::script::convert::float_array(&v))
-            .map_err(num(f))
-    });
+            .map_err(call.num())
+    }
 
-    // Equivalence.
-    engine.register_fn("equivalence", |a: Dynamic, b: Dynamic| -> Rr<Map> {
-        let f = "equivalence";
-        let (a, b) = (to_system(&a, f, "a")?, to_system(&b, f, "b")?);
-        let e = eqv::equivalence(&a, &b).map_err(num(f))?;
+    /// Wc solving A Wc + Wc Aᵀ + B Bᵀ = 0 (discrete: A Wc Aᵀ − Wc + B Bᵀ = 0)
+    ///
+    /// Bartels–Stewart on the real Schur form; needs a stable model.
+    ///
+    /// example:
+    ///     controllability_gramian(plant)
+    #[family = "transforms"]
+    fn controllability_gramian(call, sys: Model) -> Matrix {
+        balance::controllability_gramian(&sys.a, &sys.b, sys.dt)
+            .map(Matrix)
+            .map_err(call.num())
+    }
+
+    /// Wo solving Aᵀ Wo + Wo A + Cᵀ C = 0 (discrete analogue)
+    ///
+    /// Bartels–Stewart on the real Schur form; needs a stable model.
+    ///
+    /// example:
+    ///     observability_gramian(plant)
+    #[family = "transforms"]
+    fn observability_gramian(call, sys: Model) -> Matrix {
+        balance::observability_gramian(&sys.a, &sys.c, sys.dt)
+            .map(Matrix)
+            .map_err(call.num())
+    }
+
+    /// √eig(Wc·Wo), descending, from Cholesky factors of the Gramians
+    ///
+    /// example:
+    ///     hankel_singular_values(plant)
+    #[family = "transforms"]
+    fn hankel_singular_values(call, sys: Model) -> Array as "[float]" {
+        balance::hankel_singular_values(&sys.a, &sys.b, &sys.c, sys.dt)
+            .map(|v| float_array(&v))
+            .map_err(call.num())
+    }
+
+    /// whether two models have the same input–output behaviour, and why
+    ///
+    /// Compares time-scaled Markov parameters up to a.order + b.order (tolerance 1e-8
+    /// relative) and cross-checks the frequency responses on a grid covering every pole
+    /// (1e-6). Where the data are ill-conditioned (a model reached through a badly
+    /// conditioned transform), a quantity's tolerance rises to 30·n·ε times its
+    /// sensitivity to rounding-level changes of A, B, C, and the reason says how far the
+    /// data resolve it. margin is the largest difference over its tolerance (≤ 1 when
+    /// equivalent); between 0.1 and 10 the reason calls the verdict borderline. When both
+    /// models are minimal and of equal order, transform is the T with
+    /// b = transform_state(a, T); otherwise ().
+    ///
+    /// example:
+    ///     equivalence(plant, modal_realization(plant).system).equivalent   // true
+    #[family = "equivalence"]
+    fn equivalence(call, a: Model, b: Model)
+        -> Map as "#{ equivalent, reason, markov_error, frequency_error, margin, transform }"
+    {
+        let e = eqv::equivalence(&a, &b).map_err(call.num())?;
         let mut m = Map::new();
         m.insert("equivalent".into(), Dynamic::from_bool(e.equivalent));
         m.insert("reason".into(), Dynamic::from(e.reason));
@@ -490,19 +677,14 @@ pub fn register(engine: &mut Engine) {
             e.transform.map(matrix_value).unwrap_or(Dynamic::UNIT),
         );
         Ok(m)
-    });
-    engine.register_fn("find_transform", |a: Dynamic, b: Dynamic| -> Rr<Dynamic> {
-        let f = "find_transform";
-        let (a, b) = (to_system(&a, f, "a")?, to_system(&b, f, "b")?);
-        eqv::find_transform(&a, &b)
-            .map(matrix_value)
-            .map_err(num(f))
-    });
+    }
 
-    files::register(engine);
-    let _ = type_name;
-}
-
-fn realize_rcond(t: &DMatrix<f64>) -> f64 {
-    transform::rcond(t).max(f64::MIN_POSITIVE)
+    /// the T with b = transform_state(a, T), or an error saying why none exists
+    ///
+    /// example:
+    ///     find_transform(plant, balanced_realization(plant).system)
+    #[family = "equivalence"]
+    fn find_transform(call, a: Model, b: Model) -> Matrix {
+        eqv::find_transform(&a, &b).map(Matrix).map_err(call.num())
+    }
 }

@@ -22,8 +22,15 @@ use rhai::Dynamic;
 
 /// The built-ins each binding file declares with [`crate::builtins!`] (registration and
 /// help page in one declaration).
-pub const DECLARED: &[&[crate::script::declare::Builtin]] =
-    &[freq::BUILTINS, stats::BUILTINS, matrix::BUILTINS];
+pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
+    freq::BUILTINS,
+    stats::BUILTINS,
+    matrix::BUILTINS,
+    linalg::BUILTINS,
+    design::BUILTINS,
+    lti::BUILTINS,
+    lti::FILE_BUILTINS,
+];
 
 /// Help tables of the binding files not yet written as declarations.
 pub const DOC_TABLES: &[&[Doc]] = &[
@@ -32,7 +39,6 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     complex::DOCS,
     files::DOCS,
     matrix::DOCS,
-    linalg::DOCS,
     lti::DOCS,
     output::DOCS,
     plot::DOCS,

@@ -3,10 +3,11 @@
 
 use crate::numeric::lti::system::StateSpace;
 use crate::numeric::lti::tf::TransferFunction as Tf;
-use crate::script::convert::{fail, num, to_str, Rr};
+use crate::script::convert::Rr;
+use crate::script::declare::Call;
 use crate::script::state;
 use crate::script::types::{System, TransferFunction};
-use rhai::{Dynamic, Engine, NativeCallContext};
+use rhai::Dynamic;
 use serde_json::{json, Value};
 
 /// The format tag of model files.
@@ -19,7 +20,7 @@ fn matrix_json(m: &nalgebra::DMatrix<f64>) -> Value {
 }
 
 /// Encodes a model as a model-file document.
-pub fn encode(v: &Dynamic) -> Rr<Value> {
+fn encode(call: &Call, v: &Dynamic) -> Rr<Value> {
     if let Some(s) = v.read_lock::<System>() {
         let s = &s.0;
         return Ok(json!({
@@ -44,22 +45,21 @@ pub fn encode(v: &Dynamic) -> Rr<Value> {
             "den": t.0.den,
         }));
     }
-    Err(fail(format!(
-        "save_model: expected a System or TransferFunction, found {}",
+    Err(call.fail(format_args!(
+        "expected a System or TransferFunction, found {}",
         crate::script::convert::type_name(v)
     )))
 }
 
 fn matrix_of(
+    call: &Call,
     v: &Value,
     key: &str,
     rows_hint: usize,
     cols_hint: usize,
 ) -> Rr<nalgebra::DMatrix<f64>> {
     let Some(rows) = v.get(key).and_then(Value::as_array) else {
-        return Err(fail(format!(
-            "load_model: the file has no matrix \"{key}\""
-        )));
+        return Err(call.fail(format_args!("the file has no matrix \"{key}\"")));
     };
     if rows.is_empty() {
         return Ok(nalgebra::DMatrix::zeros(rows_hint, cols_hint));
@@ -67,18 +67,14 @@ fn matrix_of(
     let mut data: Vec<Vec<f64>> = Vec::new();
     for (i, r) in rows.iter().enumerate() {
         let Some(r) = r.as_array() else {
-            return Err(fail(format!("load_model: {key}[{i}] is not a row")));
+            return Err(call.fail(format_args!("{key}[{i}] is not a row")));
         };
         let row: Option<Vec<f64>> = r.iter().map(Value::as_f64).collect();
         let Some(row) = row else {
-            return Err(fail(format!(
-                "load_model: {key}[{i}] has a non-numeric entry"
-            )));
+            return Err(call.fail(format_args!("{key}[{i}] has a non-numeric entry")));
         };
         if data.first().is_some_and(|f| f.len() != row.len()) {
-            return Err(fail(format!(
-                "load_model: {key} has rows of different lengths"
-            )));
+            return Err(call.fail(format_args!("{key} has rows of different lengths")));
         }
         data.push(row);
     }
@@ -99,27 +95,26 @@ fn strings(v: &Value, key: &str) -> Vec<String> {
 }
 
 /// Decodes a model-file document.
-pub fn decode(v: &Value) -> Rr<Dynamic> {
+fn decode(call: &Call, v: &Value) -> Rr<Dynamic> {
     if v.get("format").and_then(Value::as_str) != Some(FORMAT) {
-        return Err(fail(
-            "load_model: not a statebook model file (missing \"format\": \"statebook-model\")",
-        ));
+        return Err(
+            call.fail("not a statebook model file (missing \"format\": \"statebook-model\")")
+        );
     }
     let version = v.get("version").and_then(Value::as_i64).unwrap_or(0);
     if version != VERSION {
-        return Err(fail(format!(
-            "load_model: model file version {version} is not supported (this statebook reads version {VERSION})"
+        return Err(call.fail(format_args!("model file version {version} is not supported (this statebook reads version {VERSION})"
         )));
     }
     let dt = v.get("dt").and_then(Value::as_f64).unwrap_or(0.0);
     match v.get("kind").and_then(Value::as_str) {
         Some("state_space") => {
-            let a = matrix_of(v, "A", 0, 0)?;
+            let a = matrix_of(call, v, "A", 0, 0)?;
             let n = a.nrows();
-            let b = matrix_of(v, "B", n, 0)?;
-            let c = matrix_of(v, "C", 0, n)?;
-            let d = matrix_of(v, "D", c.nrows(), b.ncols())?;
-            let mut s = StateSpace::new(a, b, c, d, dt).map_err(num("load_model"))?;
+            let b = matrix_of(call, v, "B", n, 0)?;
+            let c = matrix_of(call, v, "C", 0, n)?;
+            let d = matrix_of(call, v, "D", c.nrows(), b.ncols())?;
+            let mut s = StateSpace::new(a, b, c, d, dt).map_err(call.num())?;
             let (ins, outs, sts) = (
                 strings(v, "inputs"),
                 strings(v, "outputs"),
@@ -141,52 +136,54 @@ pub fn decode(v: &Value) -> Rr<Dynamic> {
                 v.get(k)
                     .and_then(Value::as_array)
                     .and_then(|a| a.iter().map(Value::as_f64).collect::<Option<Vec<f64>>>())
-                    .ok_or_else(|| fail(format!("load_model: \"{k}\" must be an array of numbers")))
+                    .ok_or_else(|| call.fail(format_args!("\"{k}\" must be an array of numbers")))
             };
             Tf::new(&list("num")?, &list("den")?, dt)
                 .map(|t| Dynamic::from(TransferFunction(t)))
-                .map_err(num("load_model"))
+                .map_err(call.num())
         }
-        other => Err(fail(format!("load_model: unknown model kind {other:?}"))),
+        other => Err(call.fail(format_args!("unknown model kind {other:?}"))),
     }
 }
 
-/// Registers `save_model` and `load_model`.
-pub fn register(engine: &mut Engine) {
-    engine.register_fn(
-        "save_model",
-        |ctx: NativeCallContext, m: Dynamic, path: Dynamic| -> Rr<()> {
-            let path = to_str(&path, "save_model", "path")?;
-            let Some(st) = state::of(&ctx) else {
-                return Err(fail("save_model: no session"));
-            };
-            let real = st
-                .sandbox
-                .write_path(&path)
-                .map_err(|e| fail(format!("save_model: {e}")))?;
-            let doc = encode(&m)?;
-            let mut text = serde_json::to_string_pretty(&doc).unwrap_or_default();
-            text.push('\n');
-            crate::safe_fs::write_file(&real, text.as_bytes(), false)
-                .map_err(|e| fail(format!("save_model: cannot write {path}: {e}")))
-        },
-    );
-    engine.register_fn(
-        "load_model",
-        |ctx: NativeCallContext, path: Dynamic| -> Rr<Dynamic> {
-            let path = to_str(&path, "load_model", "path")?;
-            let Some(st) = state::of(&ctx) else {
-                return Err(fail("load_model: no session"));
-            };
-            let real = st
-                .sandbox
-                .read_path(&path)
-                .map_err(|e| fail(format!("load_model: {e}")))?;
-            let text = crate::budget::read_bounded(&real)
-                .map_err(|e| fail(format!("load_model: cannot read {path}: {e}")))?;
-            let v: Value = serde_json::from_str(&text)
-                .map_err(|e| fail(format!("load_model: {path} is not valid JSON: {e}")))?;
-            decode(&v)
-        },
-    );
+crate::builtins! {
+    /// writes a model as a versioned statebook JSON model file
+    ///
+    /// model: a System or a TransferFunction; path: inside the project folder. The format
+    /// is documented in docs/model-format.md.
+    ///
+    /// example:
+    ///     save_model(plant, "plant.model.json");
+    #[family = "output and files"]
+    fn save_model(call, model: Dynamic, path: String) -> () {
+        let Some(st) = state::of(call.ctx()) else {
+            return Err(call.fail("no session"));
+        };
+        let real = st.sandbox.write_path(&path).map_err(|e| call.fail(e))?;
+        let doc = encode(&call, &model)?;
+        let mut text = serde_json::to_string_pretty(&doc).unwrap_or_default();
+        text.push('\n');
+        crate::safe_fs::write_file(&real, text.as_bytes(), false)
+            .map_err(|e| call.fail(format_args!("cannot write {path}: {e}")))
+    }
+
+    /// reads a statebook JSON model file
+    ///
+    /// path: inside the project folder. The format is documented in docs/model-format.md.
+    ///
+    /// example:
+    ///     save_model(plant, "plant.model.json");
+    ///     let p = load_model("plant.model.json");
+    #[family = "output and files"]
+    fn load_model(call, path: String) -> Dynamic as "System | TransferFunction" {
+        let Some(st) = state::of(call.ctx()) else {
+            return Err(call.fail("no session"));
+        };
+        let real = st.sandbox.read_path(&path).map_err(|e| call.fail(e))?;
+        let text = crate::budget::read_bounded(&real)
+            .map_err(|e| call.fail(format_args!("cannot read {path}: {e}")))?;
+        let v: Value = serde_json::from_str(&text)
+            .map_err(|e| call.fail(format_args!("{path} is not valid JSON: {e}")))?;
+        decode(&call, &v)
+    }
 }
