@@ -23,15 +23,18 @@ use rhai::Dynamic;
 
 /// The built-ins each binding file declares with [`crate::builtins!`] (registration and
 /// help page in one declaration).
-pub const DECLARED: &[&[crate::script::declare::Builtin]] =
-    &[freq::BUILTINS, stats::BUILTINS, matrix::BUILTINS];
+pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
+    freq::BUILTINS,
+    stats::BUILTINS,
+    matrix::BUILTINS,
+    files::BUILTINS,
+];
 
 /// Help tables of the binding files not yet written as declarations.
 pub const DOC_TABLES: &[&[Doc]] = &[
     crate::script::sizes::DOCS,
     arith::DOCS,
     complex::DOCS,
-    files::DOCS,
     matrix::DOCS,
     linalg::DOCS,
     lti::DOCS,
