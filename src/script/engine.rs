@@ -68,7 +68,6 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::lti::register(&mut e);
     builtins::output::register(&mut e, state);
     builtins::plot::register(&mut e);
-    builtins::files::register(&mut e);
     builtins::time::register(&mut e);
     builtins::design::register(&mut e);
     builtins::model_plots::register(&mut e);

@@ -2,34 +2,11 @@
 //! (relative to the analysis file's folder, never outside it) and files are written through
 //! a temporary file and a rename.
 
-use crate::script::convert::{fail, matrix_value, to_matrix, to_str, Rr};
-use crate::script::docs::Doc;
+use crate::script::convert::{matrix_value, to_str, Rr};
+use crate::script::declare::Call;
 use crate::script::state;
 use nalgebra::DMatrix;
-use rhai::{Array, Dynamic, Engine, NativeCallContext};
-
-/// Help entries of this file.
-pub const DOCS: &[Doc] = &[
-    Doc {
-        name: "read_csv",
-        family: "output and files",
-        usage: "read_csv(path) → Matrix",
-        summary: "reads a numeric CSV file (an optional header row is skipped)",
-        details: "path: relative to the analysis file, inside its folder. Cells are separated \
-                  by commas; a first row that is not all numbers is taken as the header. Every \
-                  other row must hold the same number of numeric cells.",
-        example: "write_csv(\"measured.csv\", matrix([[0, 1.5], [0.1, 1.7]]), [\"t\", \"y\"]);\nlet data = read_csv(\"measured.csv\");",
-    },
-    Doc {
-        name: "write_csv",
-        family: "output and files",
-        usage: "write_csv(path, matrix)\nwrite_csv(path, matrix, headers)",
-        summary: "writes a matrix as CSV, with an optional header row",
-        details: "headers: an array of strings, one per column. Numbers are written with 17 \
-                  significant digits so that read_csv gives back the same values.",
-        example: "write_csv(\"response.csv\", matrix([[0, 1], [0.1, 0.9]]), [\"t\", \"y\"]);",
-    },
-];
+use rhai::{Array, Dynamic};
 
 /// Splits one CSV line into cells (double quotes group, `""` is a literal quote).
 fn cells(line: &str) -> Vec<String> {
@@ -130,29 +107,23 @@ pub fn format_csv(m: &DMatrix<f64>, headers: Option<&[String]>) -> String {
     s
 }
 
-fn write(
-    ctx: &NativeCallContext,
-    path: &Dynamic,
-    m: &Dynamic,
-    headers: Option<&Dynamic>,
-) -> Rr<()> {
-    let f = "write_csv";
-    let path = to_str(path, f, "path")?;
-    let m = to_matrix(m, f, "matrix")?;
+/// The sandboxed session behind a call (every file built-in needs one).
+fn session(call: &Call) -> Rr<std::sync::Arc<state::SessionState>> {
+    state::of(call.ctx()).ok_or_else(|| call.fail("no session"))
+}
+
+fn write(call: &Call, path: String, m: DMatrix<f64>, headers: Option<Array>) -> Rr<()> {
     let headers: Option<Vec<String>> = match headers {
         None => None,
-        Some(h) => {
-            let Some(a) = h.read_lock::<Array>() else {
-                return Err(fail("write_csv: headers must be an array of strings"));
-            };
+        Some(a) => {
             let v: Vec<String> = a
                 .iter()
                 .enumerate()
-                .map(|(k, x)| to_str(x, f, &format!("headers[{k}]")))
+                .map(|(k, x)| to_str(x, call.name, &format!("headers[{k}]")))
                 .collect::<Rr<_>>()?;
             if v.len() != m.ncols() {
-                return Err(fail(format!(
-                    "write_csv: {} headers for a matrix with {} columns",
+                return Err(call.fail(format_args!(
+                    "{} headers for a matrix with {} columns",
                     v.len(),
                     m.ncols()
                 )));
@@ -160,51 +131,51 @@ fn write(
             Some(v)
         }
     };
-    let Some(st) = state::of(ctx) else {
-        return Err(fail("write_csv: no session"));
-    };
-    let real = st
-        .sandbox
-        .write_path(&path)
-        .map_err(|e| fail(format!("write_csv: {e}")))?;
+    let st = session(call)?;
+    let real = st.sandbox.write_path(&path).map_err(|e| call.fail(e))?;
     let text = format_csv(&m, headers.as_deref());
     crate::safe_fs::write_file(&real, text.as_bytes(), false)
-        .map_err(|e| fail(format!("write_csv: cannot write {path}: {e}")))
+        .map_err(|e| call.fail(format_args!("cannot write {path}: {e}")))
 }
 
-/// Registers the file built-ins.
-pub fn register(engine: &mut Engine) {
-    engine.register_fn(
-        "read_csv",
-        |ctx: NativeCallContext, path: Dynamic| -> Rr<Dynamic> {
-            let path = to_str(&path, "read_csv", "path")?;
-            let Some(st) = state::of(&ctx) else {
-                return Err(fail("read_csv: no session"));
-            };
-            let real = st
-                .sandbox
-                .read_path(&path)
-                .map_err(|e| fail(format!("read_csv: {e}")))?;
-            let text = crate::budget::read_bounded(&real)
-                .map_err(|e| fail(format!("read_csv: cannot read {path}: {e}")))?;
-            let (_, m) = parse_csv(&text, &path).map_err(|e| fail(format!("read_csv: {e}")))?;
-            let limit = st.limits.matrix_entries;
-            if m.len() > limit {
-                return Err(fail(format!(
-                    "read_csv: {path} has more than {limit} entries"
-                )));
-            }
-            Ok(matrix_value(m))
-        },
-    );
-    engine.register_fn(
-        "write_csv",
-        |ctx: NativeCallContext, p: Dynamic, m: Dynamic| write(&ctx, &p, &m, None),
-    );
-    engine.register_fn(
-        "write_csv",
-        |ctx: NativeCallContext, p: Dynamic, m: Dynamic, h: Dynamic| write(&ctx, &p, &m, Some(&h)),
-    );
+crate::builtins! {
+    /// reads a numeric CSV file (an optional header row is skipped)
+    ///
+    /// path: relative to the analysis file, inside its folder. Cells are separated by
+    /// commas; a first row that is not all numbers is taken as the header. Every other row
+    /// must hold the same number of numeric cells.
+    ///
+    /// example:
+    ///     write_csv("measured.csv", matrix([[0, 1.5], [0.1, 1.7]]), ["t", "y"]);
+    ///     let data = read_csv("measured.csv");
+    #[family = "output and files"]
+    fn read_csv(call, path: String) -> Dynamic as "Matrix" {
+        let st = session(&call)?;
+        let real = st.sandbox.read_path(&path).map_err(|e| call.fail(e))?;
+        let text = crate::budget::read_bounded(&real)
+            .map_err(|e| call.fail(format_args!("cannot read {path}: {e}")))?;
+        let (_, m) = parse_csv(&text, &path).map_err(|e| call.fail(e))?;
+        let limit = st.limits.matrix_entries;
+        if m.len() > limit {
+            return Err(call.fail(format_args!("{path} has more than {limit} entries")));
+        }
+        Ok(matrix_value(m))
+    }
+
+    /// writes a matrix as CSV, with an optional header row
+    ///
+    /// headers: an array of strings, one per column. Numbers are written with 17
+    /// significant digits so that read_csv gives back the same values.
+    ///
+    /// example:
+    ///     write_csv("response.csv", matrix([[0, 1], [0.1, 0.9]]), ["t", "y"]);
+    #[family = "output and files"]
+    fn write_csv(call, path: String, matrix: DMatrix<f64>) -> () {
+        write(&call, path, matrix, None)
+    }
+    fn write_csv(call, path: String, matrix: DMatrix<f64>, headers: Array) -> () {
+        write(&call, path, matrix, Some(headers))
+    }
 }
 
 #[cfg(test)]

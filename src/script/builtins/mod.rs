@@ -30,6 +30,7 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     design::BUILTINS,
     lti::BUILTINS,
     lti::FILE_BUILTINS,
+    files::BUILTINS,
 ];
 
 /// Help tables of the binding files not yet written as declarations.
@@ -37,7 +38,6 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     crate::script::sizes::DOCS,
     arith::DOCS,
     complex::DOCS,
-    files::DOCS,
     matrix::DOCS,
     lti::DOCS,
     output::DOCS,
