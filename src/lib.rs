@@ -125,13 +125,13 @@ impl Session {
                     None => (None, None),
                 };
                 Err(ScriptError {
-                    message: format!(
-                        "internal error: statebook failed on this input ({what})\nhint: please \
-                         report it with the analysis file"
-                    ),
                     line,
                     column,
                     internal: true,
+                    ..ScriptError::plain(format!(
+                        "internal error: statebook failed on this input ({what})\nhint: please \
+                         report it with the analysis file"
+                    ))
                 })
             }
         }
@@ -151,7 +151,13 @@ impl Session {
         let mut lib = merged;
         lib.clear_statements();
         self.lib = lib;
-        result.map_err(|e| ScriptError::from_eval(&e))
+        result.map_err(|e| {
+            let mut se = ScriptError::from_eval(&e);
+            if let (Some(f), Some(l)) = (&se.file, se.line) {
+                se.file_line = self.state.module_line(f, l);
+            }
+            se
+        })
     }
 
     /// Finds where a caught panic happened: re-runs the code from the scope it started

@@ -502,6 +502,104 @@ fn a_cr_only_imported_module_is_read_like_the_main_file() {
     assert!(err.contains(":6:3"), "module line lost: {err}");
 }
 
+/// Runs `main` (written as `a.sbook`) beside the given module files; returns stderr.
+fn run_with_modules(name: &str, modules: &[(&str, &str)], main: &str) -> String {
+    let (project, _) = tree(name);
+    for (file, body) in modules {
+        std::fs::write(project.join(file), body).expect("module");
+    }
+    let file = project.join("a.sbook");
+    std::fs::write(&file, main).expect("file");
+    let out = run_file(&file, &["run"]);
+    assert_eq!(out.status.code(), Some(1), "{}", text(&out.stderr));
+    text(&out.stderr)
+}
+
+/// Whether a `note:` line starts with `head` and names `place` (the file being run is
+/// named by the path it was given).
+fn has_note(err: &str, head: &str, place: &str) -> bool {
+    err.lines()
+        .any(|l| l.starts_with(&format!("note: {head}")) && l.contains(place))
+}
+
+const SINGULAR_FN: &str = "// helpers\nfn f() {\n  let z = 1;\n  inverse([[0, 0], [0, 0]])\n}\n";
+
+#[test]
+fn an_error_inside_a_module_function_names_the_module_file_and_shows_its_line() {
+    let err = run_with_modules(
+        "module-fn",
+        &[("m.sbook", SINGULAR_FN)],
+        "let x = 1;\nimport \"m\" as m;\nlet q = 2;\nm::f()\n",
+    );
+    assert!(err.contains("at m.sbook:4:3"), "{err}");
+    assert!(err.contains("4 │   inverse([[0, 0], [0, 0]])"), "{err}");
+    assert!(
+        has_note(&err, "in f(), called from ", "/a.sbook:4:"),
+        "{err}"
+    );
+    assert!(!err.contains("at a.sbook"), "{err}");
+}
+
+#[test]
+fn an_error_at_a_module_top_level_names_the_module_file_and_the_import() {
+    let err = run_with_modules(
+        "module-top",
+        &[(
+            "t.sbook",
+            "// top\nlet k = 3;\nlet y = inverse([[0, 0], [0, 0]]);\n",
+        )],
+        "// main\nimport \"t\" as t;\n",
+    );
+    assert!(err.contains("at t.sbook:3:9"), "{err}");
+    assert!(err.contains("3 │ let y = inverse("), "{err}");
+    assert!(
+        has_note(&err, "in module t, imported from ", "/a.sbook:2:8"),
+        "{err}"
+    );
+}
+
+#[test]
+fn an_error_two_imports_deep_names_the_innermost_file_and_every_step() {
+    // A function chain: a.sbook calls n::g, which calls m::f, which fails.
+    let err = run_with_modules(
+        "module-deep-fn",
+        &[
+            ("m.sbook", SINGULAR_FN),
+            ("n.sbook", "import \"m\" as m;\nfn g() {\n  m::f()\n}\n"),
+        ],
+        "let w = 0;\nimport \"n\" as n;\nn::g();\n",
+    );
+    assert!(err.contains("at m.sbook:4:3"), "{err}");
+    assert!(err.contains("4 │   inverse("), "{err}");
+    assert!(err.contains("in f(), called from n.sbook:3:"), "{err}");
+    assert!(
+        has_note(&err, "in g(), called from ", "/a.sbook:3:"),
+        "{err}"
+    );
+    // An import chain: a.sbook imports n, whose top level imports t, which fails.
+    let err = run_with_modules(
+        "module-deep-top",
+        &[
+            (
+                "t.sbook",
+                "// top\nlet k = 3;\nlet y = inverse([[0, 0], [0, 0]]);\n",
+            ),
+            ("n.sbook", "// middle\n\nimport \"t\" as t;\n"),
+        ],
+        "import \"n\" as n;\n",
+    );
+    assert!(err.contains("at t.sbook:3:9"), "{err}");
+    assert!(err.contains("3 │ let y = inverse("), "{err}");
+    assert!(
+        err.contains("in module t, imported from n.sbook:3:8"),
+        "{err}"
+    );
+    assert!(
+        has_note(&err, "in module n, imported from ", "/a.sbook:1:8"),
+        "{err}"
+    );
+}
+
 #[test]
 fn piped_repl_reports_a_non_utf8_line_and_goes_on() {
     let (project, _) = tree("non-utf8");

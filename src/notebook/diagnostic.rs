@@ -4,7 +4,7 @@
 
 use rhai::{EvalAltResult, ParseError, Position};
 
-/// A script error with its position in the analysis file.
+/// A script error with its position in the analysis file (or in a file it imports).
 #[derive(Debug, Clone, PartialEq)]
 pub struct ScriptError {
     /// What went wrong, in the user's terms (may hold a `hint:` line).
@@ -15,10 +15,38 @@ pub struct ScriptError {
     pub column: Option<usize>,
     /// Whether this is a statebook defect rather than a problem with the script.
     pub internal: bool,
+    /// The imported file `line` and `column` are in (`None`: the file being run).
+    pub file: Option<String>,
+    /// The text of that line of the imported file (the session kept the text it ran).
+    pub file_line: Option<String>,
+    /// The function calls and imports that led to the error, innermost first.
+    pub calls: Vec<CallSite>,
+}
+
+/// One step of the way to an error: a call of a script function or an import.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CallSite {
+    /// `in f()` or `in module m`.
+    pub what: String,
+    /// The file holding the call or the import (`None`: the file being run).
+    pub file: Option<String>,
+    /// 1-based line of the call in that file.
+    pub line: usize,
+    /// 1-based column of the call.
+    pub column: usize,
 }
 
 fn pos(p: Position) -> (Option<usize>, Option<usize>) {
     (p.line(), p.position())
+}
+
+/// The file an `import "path"` reads (as the module resolver names it).
+pub fn module_file(path: &str) -> String {
+    if path.ends_with(".sbook") {
+        path.to_string()
+    } else {
+        format!("{path}.sbook")
+    }
 }
 
 impl ScriptError {
@@ -29,6 +57,9 @@ impl ScriptError {
             line: None,
             column: None,
             internal: false,
+            file: None,
+            file_line: None,
+            calls: Vec::new(),
         }
     }
 
@@ -36,53 +67,125 @@ impl ScriptError {
     pub fn from_parse(e: &ParseError) -> Self {
         let (line, column) = pos(e.position());
         ScriptError {
-            message: format!("syntax: {}", e.err_type()),
             line,
             column,
-            internal: false,
+            ..ScriptError::plain(format!("syntax: {}", e.err_type()))
         }
     }
 
-    /// From an evaluation error, unwrapping calls into script functions so that the
-    /// position is the innermost one (where the problem is) and naming the call chain.
+    /// From an evaluation error, unwrapping calls into script functions and imports so
+    /// that the position is the innermost one (where the problem is), in the file it is
+    /// in, and naming the way there. A call's position is in the file of the function
+    /// (or module) around it; the engine tags each call with the file its function was
+    /// defined in (the module's source name; empty for the file being run).
     pub fn from_eval(e: &EvalAltResult) -> Self {
-        let mut chain = Vec::new();
+        let mut calls = Vec::new();
+        let mut file: Option<String> = None;
         let mut cur = e;
-        while let EvalAltResult::ErrorInFunctionCall(name, _, inner, p) = cur {
-            chain.push((name.clone(), *p));
-            cur = inner;
-        }
-        let (line, column) = pos(cur.position());
-        let mut message = describe(cur);
-        for (name, p) in chain.iter().rev() {
-            if let Some(l) = p.line() {
-                message.push_str(&format!("\nnote: in {name}(), called at line {l}"));
+        // Module prefixes for errors whose innermost part has no position of its own.
+        let mut modules = Vec::new();
+        loop {
+            match cur {
+                EvalAltResult::ErrorInFunctionCall(name, source, inner, p) => {
+                    if let (Some(l), c) = pos(*p) {
+                        calls.push(CallSite {
+                            what: format!("in {name}()"),
+                            file: file.clone(),
+                            line: l,
+                            column: c.unwrap_or(1),
+                        });
+                    }
+                    file = (!source.is_empty()).then(|| source.to_string());
+                    cur = inner;
+                }
+                EvalAltResult::ErrorInModule(name, inner, p) => {
+                    if let (Some(l), c) = pos(*p) {
+                        calls.push(CallSite {
+                            what: format!("in module {name}"),
+                            file: file.clone(),
+                            line: l,
+                            column: c.unwrap_or(1),
+                        });
+                    }
+                    modules.push(name.clone());
+                    file = Some(module_file(name));
+                    cur = inner;
+                }
+                _ => break,
             }
         }
-        let (line, column) = if line.is_none() {
-            chain.first().map(|(_, p)| pos(*p)).unwrap_or((None, None))
-        } else {
-            (line, column)
-        };
+        calls.reverse();
+        let (mut line, mut column) = pos(cur.position());
+        let mut message = describe(cur);
+        if line.is_none() {
+            // No position of its own: the nearest call or import is where it happened.
+            if let Some(c) = calls.first() {
+                (line, column, file) = (Some(c.line), Some(c.column), c.file.clone());
+                if c.what.starts_with("in module") {
+                    // "in module m: import: cannot read m.sbook" — the import itself.
+                    if let Some(m) = modules.last() {
+                        message = format!("in module {m}: {message}");
+                    }
+                }
+                calls.remove(0);
+            }
+        }
         ScriptError {
-            message,
             line,
             column,
-            internal: false,
+            file,
+            calls,
+            ..ScriptError::plain(message)
         }
     }
 
-    /// Renders the error for the terminal: message, location, source line, caret.
+    /// The notes naming the way to the error, innermost first. `main` names the file
+    /// being run; a call inside it, on the way to an error inside it, keeps the short
+    /// form `called at line L`.
+    pub fn call_notes(&self, main: &str) -> Vec<String> {
+        self.calls
+            .iter()
+            .map(|c| {
+                let verb = if c.what.starts_with("in module") {
+                    "imported"
+                } else {
+                    "called"
+                };
+                match (&c.file, &self.file) {
+                    (None, None) => format!("{}, {verb} at line {}", c.what, c.line),
+                    (f, _) => format!(
+                        "{}, {verb} from {}:{}:{}",
+                        c.what,
+                        f.as_deref().unwrap_or(main),
+                        c.line,
+                        c.column
+                    ),
+                }
+            })
+            .collect()
+    }
+
+    /// Renders the error for the terminal: message, location, source line, caret, and
+    /// the calls that led there. `source` is the text of `file_name`; an error inside an
+    /// imported file shows that file's name and line instead.
     pub fn render(&self, file_name: &str, source: &str) -> String {
         let (head, rest) = match self.message.split_once('\n') {
             Some((h, r)) => (h.to_string(), Some(r.to_string())),
             None => (self.message.clone(), None),
         };
         let mut s = format!("error: {head}");
+        let shown = self.file.as_deref().unwrap_or(file_name);
         if let Some(line) = self.line {
             let col = self.column.unwrap_or(1);
-            s.push_str(&format!("\n  at {file_name}:{line}:{col}"));
-            if let Some(text) = source.lines().nth(line.saturating_sub(1)) {
+            s.push_str(&format!("\n  at {shown}:{line}:{col}"));
+            let text = match &self.file {
+                Some(_) => self.file_line.clone(),
+                None => source
+                    .lines()
+                    .nth(line.saturating_sub(1))
+                    .map(str::to_string),
+            };
+            if let Some(text) = text {
                 let text = text.trim_end_matches('\r');
                 let num = line.to_string();
                 let pad = " ".repeat(num.len());
@@ -94,11 +197,15 @@ impl ScriptError {
                 s.push_str(&format!("\n  {num} │ {text}\n  {pad} │ {caret_at}^"));
             }
         } else {
-            s.push_str(&format!("\n  in {file_name}"));
+            s.push_str(&format!("\n  in {shown}"));
         }
         if let Some(r) = rest {
             s.push('\n');
             s.push_str(&r);
+        }
+        for n in self.call_notes(file_name) {
+            s.push_str("\nnote: ");
+            s.push_str(&n);
         }
         s
     }
@@ -253,10 +360,9 @@ mod tests {
     #[test]
     fn render_points_at_the_column() {
         let e = ScriptError {
-            message: "solve: B: expected 2 rows, found 3\nhint: check B".into(),
             line: Some(2),
             column: Some(9),
-            internal: false,
+            ..ScriptError::plain("solve: B: expected 2 rows, found 3\nhint: check B")
         };
         let out = e.render("plant.sbook", "let a = 1;\nlet x = solve(A, B);\n");
         assert!(out.starts_with("error: solve: B: expected 2 rows, found 3\n  at plant.sbook:2:9"));

@@ -132,11 +132,7 @@ impl ModuleResolver for SandboxResolver {
         path: &str,
         pos: Position,
     ) -> Result<Shared<Module>, Box<EvalAltResult>> {
-        let file = if path.ends_with(".sbook") {
-            path.to_string()
-        } else {
-            format!("{path}.sbook")
-        };
+        let file = crate::notebook::diagnostic::module_file(path);
         let real = self.state.sandbox.read_path(&file).map_err(|m| {
             Box::new(EvalAltResult::ErrorInModule(
                 path.to_string(),
@@ -185,6 +181,7 @@ impl SandboxResolver {
         let text = crate::budget::read_bounded(real)
             .map_err(|err| in_module(path, format!("import: cannot read {file}: {err}"), pos))?;
         let text = crate::safe_fs::normalise_text(&text);
+        self.state.keep_module_text(file, &text);
         let mut ast = engine.compile(&*text).map_err(|err| {
             Box::new(EvalAltResult::ErrorInModule(
                 path.to_string(),

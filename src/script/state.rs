@@ -27,6 +27,9 @@ pub struct SessionState {
     /// Operations counted so far in the current evaluation (kept by `on_progress`; used
     /// to find the line of a caught panic).
     pub operations: AtomicU64,
+    /// The text of each imported file as it ran, by the name errors give it (so an error
+    /// inside a module can show its line).
+    modules: Mutex<std::collections::HashMap<String, Arc<str>>>,
 }
 
 /// A clonable handle, stored in the engine's default tag.
@@ -50,6 +53,7 @@ impl SessionState {
             limits,
             sweep: Default::default(),
             operations: AtomicU64::new(0),
+            modules: Default::default(),
         }
     }
 
@@ -66,6 +70,20 @@ impl SessionState {
     /// Adds a warning to the current cell.
     pub fn warn(&self, message: impl Into<String>) {
         self.push(Output::Warning(message.into()));
+    }
+
+    /// Keeps the text an imported file ran with, under the name its errors carry.
+    pub fn keep_module_text(&self, file: &str, text: &str) {
+        lock(&self.modules).insert(file.to_string(), Arc::from(text));
+    }
+
+    /// Line `line` (1-based) of an imported file as it ran.
+    pub fn module_line(&self, file: &str, line: usize) -> Option<String> {
+        let m = lock(&self.modules);
+        m.get(file)?
+            .lines()
+            .nth(line.checked_sub(1)?)
+            .map(str::to_string)
     }
 
     /// The display style in force.

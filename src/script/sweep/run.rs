@@ -108,9 +108,21 @@ fn describe(e: &rhai::EvalAltResult) -> String {
     let mut lines = se.message.lines();
     let mut s = lines.next().unwrap_or("").to_string();
     if let Some(l) = se.line {
-        s.push_str(&format!(" (line {l}, column {})", se.column.unwrap_or(1)));
+        let file = se
+            .file
+            .as_deref()
+            .map(|f| format!("{f} "))
+            .unwrap_or_default();
+        s.push_str(&format!(
+            " ({file}line {l}, column {})",
+            se.column.unwrap_or(1)
+        ));
     }
-    for rest in lines {
+    let notes = se.call_notes("the analysis file");
+    for rest in lines
+        .map(str::to_string)
+        .chain(notes.into_iter().map(|n| format!("note: {n}")))
+    {
         s.push_str("; ");
         s.push_str(rest.trim());
     }
