@@ -246,10 +246,13 @@ pub fn float_array(v: &[f64]) -> Array {
 
 /// Reads a string argument.
 pub fn to_str(v: &Dynamic, fname: &str, arg: &str) -> Rr<String> {
-    v.clone()
-        .into_immutable_string()
-        .map(|s| s.to_string())
-        .map_err(|t| fail(format!("{fname}: {arg} must be a string, found {t}")))
+    if let Some(s) = v.read_lock::<rhai::ImmutableString>() {
+        return Ok(s.to_string());
+    }
+    Err(fail(format!(
+        "{fname}: {arg} must be a string, found {}",
+        type_name(v)
+    )))
 }
 
 /// A model: a `System`, or a `TransferFunction` (realized minimally in state space).
