@@ -154,7 +154,7 @@ impl Session {
         result.map_err(|e| {
             let mut se = ScriptError::from_eval(&e);
             if let (Some(f), Some(l)) = (&se.file, se.line) {
-                se.file_line = self.state.module_line(f, l);
+                se.file_line = self.state.module_line(f, l).map(Into::into);
             }
             se
         })

@@ -16,9 +16,9 @@ pub struct ScriptError {
     /// Whether this is a statebook defect rather than a problem with the script.
     pub internal: bool,
     /// The imported file `line` and `column` are in (`None`: the file being run).
-    pub file: Option<String>,
+    pub file: Option<Box<str>>,
     /// The text of that line of the imported file (the session kept the text it ran).
-    pub file_line: Option<String>,
+    pub file_line: Option<Box<str>>,
     /// The function calls and imports that led to the error, innermost first.
     pub calls: Vec<CallSite>,
 }
@@ -133,7 +133,7 @@ impl ScriptError {
         ScriptError {
             line,
             column,
-            file,
+            file: file.map(Into::into),
             calls,
             ..ScriptError::plain(message)
         }
@@ -179,7 +179,7 @@ impl ScriptError {
             let col = self.column.unwrap_or(1);
             s.push_str(&format!("\n  at {shown}:{line}:{col}"));
             let text = match &self.file {
-                Some(_) => self.file_line.clone(),
+                Some(_) => self.file_line.as_deref().map(str::to_string),
                 None => source
                     .lines()
                     .nth(line.saturating_sub(1))
