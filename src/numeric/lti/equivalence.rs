@@ -29,7 +29,7 @@ use super::system::StateSpace;
 use super::transform::{rcond, transform_state};
 use crate::numeric::freq::response::FrequencyEvaluator;
 use crate::numeric::linalg::eigen::eigenvalues;
-use crate::numeric::sampling::SplitMix64;
+use crate::numeric::sampling::Xoshiro256StarStar;
 use crate::numeric::{NumError, NumResult};
 use nalgebra::DMatrix;
 
@@ -87,8 +87,16 @@ fn scaled_markov(sys: &StateSpace, alpha: f64, count: usize) -> Vec<DMatrix<f64>
 
 /// `A, B, C` of `sys` after the power-of-two system balancing of the staircase module.
 fn balanced(sys: &StateSpace) -> (DMatrix<f64>, DMatrix<f64>, DMatrix<f64>) {
+    balanced_with_scaling(sys).0
+}
+
+/// [`balanced`], with the state scaling `S` (x = S x̃) it applied.
+#[allow(clippy::type_complexity)]
+fn balanced_with_scaling(
+    sys: &StateSpace,
+) -> ((DMatrix<f64>, DMatrix<f64>, DMatrix<f64>), Vec<f64>) {
     let sc = balance_system(&sys.a, &sys.b, &sys.c);
-    sc.apply_state(&sys.a, &sys.b, &sys.c)
+    (sc.apply_state(&sys.a, &sys.b, &sys.c), sc.state)
 }
 
 /// Margins (difference over tolerance) in this range make the verdict a judgement call, and
@@ -103,11 +111,11 @@ const SENSITIVITY_SAMPLES: usize = 3;
 /// model of 1e-6 well outside it unless the data cannot resolve such a change.
 const SENSITIVITY_FACTOR: f64 = 30.0;
 
-/// A random matrix with the shape of `like` and Frobenius norm `‖like‖_F` (zero when `like`
+/// A Gaussian random matrix with the shape of `like` and Frobenius norm `‖like‖_F` (zero when `like`
 /// is zero: structurally absent data is not perturbed).
-fn direction(rng: &mut SplitMix64, like: &DMatrix<f64>) -> DMatrix<f64> {
+fn direction(rng: &mut Xoshiro256StarStar, like: &DMatrix<f64>) -> DMatrix<f64> {
     let mut g = DMatrix::from_fn(like.nrows(), like.ncols(), |_, _| {
-        (rng.next_u64() >> 11) as f64 / (1u64 << 53) as f64 - 0.5
+        rng.next_standard_normal()
     });
     let ng = g.norm();
     if ng > 0.0 {
@@ -123,7 +131,7 @@ fn markov_sensitivity(sys: &StateSpace, alpha: f64, count: usize) -> Vec<f64> {
     let (a, b, c) = balanced(sys);
     let a = a * alpha;
     let b = b * alpha;
-    let mut rng = SplitMix64::new(0x5EED_0FE0_u64);
+    let mut rng = Xoshiro256StarStar::new(0x5EED_0FE0_u64);
     let mut out = vec![0.0f64; count];
     for _ in 0..SENSITIVITY_SAMPLES {
         let (da, db, dc) = (
@@ -162,7 +170,7 @@ fn frequency_sensitivity(
         return Ok(out);
     }
     let (a, b, c) = balanced(sys);
-    let mut rng = SplitMix64::new(0xF2E9_5EED_u64);
+    let mut rng = Xoshiro256StarStar::new(0xF2E9_5EED_u64);
     for _ in 0..SENSITIVITY_SAMPLES {
         let pa = &a + direction(&mut rng, &a) * FREQUENCY_STEP;
         let pb = &b + direction(&mut rng, &b) * FREQUENCY_STEP;
@@ -442,9 +450,8 @@ pub fn find_transform(a: &StateSpace, b: &StateSpace) -> NumResult<DMatrix<f64>>
 /// `diag(2⁻¹³, 2¹³)` is recovered as well as the identity.
 fn recover_transform(a: &StateSpace, b: &StateSpace) -> NumResult<DMatrix<f64>> {
     let balanced = |s: &StateSpace| -> NumResult<(StateSpace, Vec<f64>)> {
-        let sc = balance_system(&s.a, &s.b, &s.c);
-        let (ab, bb, cb) = sc.apply_state(&s.a, &s.b, &s.c);
-        Ok((s.with_matrices(ab, bb, cb, s.d.clone())?, sc.state))
+        let ((ab, bb, cb), state) = balanced_with_scaling(s);
+        Ok((s.with_matrices(ab, bb, cb, s.d.clone())?, state))
     };
     let (ab, sa) = balanced(a)?;
     let (bb, sb) = balanced(b)?;
