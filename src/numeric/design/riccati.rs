@@ -463,7 +463,7 @@ pub(crate) fn continuous_impl(
         )));
     }
     let res = care_residual(a, &pr, &x).norm();
-    let scale = pr.q.norm() + 2.0 * a.norm() * x.norm() + x.norm_squared() * pr.g.norm();
+    let scale = care_scale(a, &pr, &x);
     Ok(Riccati {
         x,
         gain,
@@ -481,15 +481,37 @@ fn ratio(res: f64, scale: f64) -> f64 {
     }
 }
 
+/// The norm of the terms of the continuous residual, `‖Q‖ + 2‖A‖‖X‖ + ‖X‖²‖G‖`: what the
+/// residual is measured against.
+fn care_scale(a: &DMatrix<f64>, pr: &Prepared, x: &DMatrix<f64>) -> f64 {
+    pr.q.norm() + 2.0 * a.norm() * x.norm() + x.norm_squared() * pr.g.norm()
+}
+
 /// `AᵀX + XA − XGX + Q`.
 fn care_residual(a: &DMatrix<f64>, pr: &Prepared, x: &DMatrix<f64>) -> DMatrix<f64> {
     let xa = x * a;
     xa.transpose() + xa - x * &pr.g * x + &pr.q
 }
 
+/// Relative residual (residual norm over the norm of the terms that make it) at or below
+/// which a Newton correction is not tried: the computed residual is then itself rounding,
+/// so the correction solves for noise and, through an ill-conditioned closed-loop Lyapunov
+/// operator, can move `X` far more than its true error while still lowering the computed
+/// residual. Iterative refinement improves a solution only when the residual carries
+/// information above its own rounding level (Higham 2002, *Accuracy and Stability of
+/// Numerical Algorithms*, 2nd ed., §12.1).
+fn residual_at_rounding_level(res: f64, scale: f64, n: usize) -> bool {
+    res <= 4.0 * (n.max(1) as f64) * f64::EPSILON * scale
+}
+
 /// One Newton (Kleinman) step in correction form; returns the better of the two iterates.
+/// Skipped when the residual of `x` is already at rounding level
+/// ([`residual_at_rounding_level`]).
 fn kleinman_step(a: &DMatrix<f64>, pr: &Prepared, x: DMatrix<f64>) -> DMatrix<f64> {
     let res = care_residual(a, pr, &x);
+    if residual_at_rounding_level(res.norm(), care_scale(a, pr, &x), pr.n) {
+        return x;
+    }
     let ac = a - &pr.g * &x;
     match solve_lyapunov(&ac.transpose(), &symmetrize(&res)) {
         Ok(d) => {
@@ -558,8 +580,7 @@ pub(crate) fn discrete_impl(
         )));
     }
     let res = dare_residual(a, &pr, &x, &term).norm();
-    let an = a.norm();
-    let scale = pr.q.norm() + x.norm() + an * an * x.norm() + term.norm();
+    let scale = dare_scale(a, &pr, &x, &term);
     Ok(Riccati {
         u11_condition: graph_condition(&x),
         x,
@@ -643,12 +664,23 @@ fn dare_residual(
     a.transpose() * x * a - x - term + &pr.q
 }
 
+/// The norm of the terms of the discrete residual, `‖Q‖ + ‖X‖ + ‖A‖²‖X‖ + ‖term‖`.
+fn dare_scale(a: &DMatrix<f64>, pr: &Prepared, x: &DMatrix<f64>, term: &DMatrix<f64>) -> f64 {
+    let an = a.norm();
+    pr.q.norm() + x.norm() + an * an * x.norm() + term.norm()
+}
+
 /// One Newton (Hewer) step in correction form; returns the better of the two iterates.
+/// Skipped when the residual of `x` is already at rounding level
+/// ([`residual_at_rounding_level`]).
 fn hewer_step(a: &DMatrix<f64>, b: &DMatrix<f64>, pr: &Prepared, x: DMatrix<f64>) -> DMatrix<f64> {
     let Ok((k, term)) = discrete_gain(a, b, pr, &x) else {
         return x;
     };
     let res = dare_residual(a, pr, &x, &term);
+    if residual_at_rounding_level(res.norm(), dare_scale(a, pr, &x, &term), pr.n) {
+        return x;
+    }
     let ac = a - b * k;
     match solve_lyapunov_discrete(&ac.transpose(), &symmetrize(&res)) {
         Ok(d) => {

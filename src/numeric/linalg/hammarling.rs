@@ -13,7 +13,7 @@ use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
 use crate::numeric::linalg::dense::balance_reducing_norm;
 use crate::numeric::linalg::sylvester::{
-    fmt_complex, quasi_blocks, real_schur, MatrixEquationParams,
+    fmt_complex, quasi_blocks, real_schur, MatrixEquationParams, EIGENVALUE_ROUNDING,
 };
 use nalgebra::{Complex, DMatrix};
 
@@ -284,11 +284,6 @@ fn check_stability(
         None => Ok(()),
     }
 }
-
-/// Rounding level of a computed eigenvalue, relative to the norm of the balanced matrix: a
-/// backward-stable Schur form moves a well-conditioned eigenvalue by a small multiple of
-/// ε·‖Ã‖ (Wilkinson 1965, *The Algebraic Eigenvalue Problem*, ch. 2).
-const EIGENVALUE_ROUNDING: f64 = 8.0 * f64::EPSILON;
 
 /// Why a matrix with eigenvalues `eigs` is not stable with margin, or `None` when it is.
 ///

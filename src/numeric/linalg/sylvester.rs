@@ -8,11 +8,15 @@
 //! All three reduce the coefficient matrices to real Schur form once, solve the
 //! quasi-triangular equation block by block (each 1×1 or 2×2 diagonal block pair is a
 //! dense Kronecker system of order at most 4, solved by Gaussian elimination with complete
-//! pivoting) and transform back. The smallest pivot met in those block solves, divided by
-//! the norm scale of the equation, is the *relative separation* of the problem: when it
-//! falls to the resonance tolerance the equation is singular to working precision
-//! (λᵢ + μⱼ ≈ 0, or λᵢλⱼ ≈ 1 for the discrete form) and the routines return
-//! [`NumError::NoSolution`] naming that figure instead of a huge, meaningless solution.
+//! pivoting) and transform back. Each block pair is judged **on its own scale** (see
+//! [`MatrixEquationParams::resonance_tol`]): its smallest pivot — `|λ + μ|` for a pair of
+//! 1×1 blocks, `|λμ − 1|` in the discrete form — is compared with
+//! `max(tol·(|λ| + |μ|), 16ε‖A‖)` (continuous) or `max(tol·(1 + |λ||μ|),
+//! 8ε‖A‖(|λ| + |μ|))` (discrete), the larger of a relative separation and the rounding
+//! level of the computed eigenvalues. At or below that floor the equation is singular to
+//! working precision and the routines return [`NumError::NoSolution`] naming the figures
+//! instead of a huge, meaningless solution; a stiff but well-posed equation (eigenvalues
+//! −1e6 and −1e-6, so that λ + μ = −2e-6 for the slow pair) is solved.
 
 use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
@@ -24,11 +28,29 @@ use nalgebra::{Complex, DMatrix};
 /// [`crate::numeric::linalg::hammarling`]).
 #[derive(Debug, Clone, PartialEq)]
 pub struct MatrixEquationParams {
-    /// Relative separation below which the equation counts as singular. A block pivot `p`
-    /// is rejected when `|p| ≤ resonance_tol · scale`, where `scale` is `‖A‖_F + ‖B‖_F`
-    /// (Sylvester), `2‖A‖_F` (continuous Lyapunov) or `1 + ‖A‖_F²` (discrete Lyapunov).
-    /// The forward error of the solution grows like `ε / separation`, so the default
-    /// `1e-12` refuses problems whose answer could not carry about four correct digits.
+    /// Relative separation below which the equation counts as singular, judged **per
+    /// diagonal block pair** of the Schur forms, never against one global norm. The block
+    /// pivot `p` of the pair with eigenvalues `λ` (of `A`) and `μ` (of `B`, or of `A` again
+    /// for Lyapunov) is rejected when
+    ///
+    /// * continuous (`λ + μ ≈ 0`): `|p| ≤ max(resonance_tol·(|λ| + |μ|), 8ε(‖A‖_F + ‖B‖_F))`;
+    /// * discrete (`λμ ≈ 1`): `|p| ≤ max(resonance_tol·(1 + |λ||μ|),
+    ///   8ε(‖A‖_F·|μ| + ‖B‖_F·|λ|))`.
+    ///
+    /// The first term is the relative separation of the pair; the second is the rounding
+    /// level of the computed `λ + μ` (or `λμ`): a backward-stable Schur form moves a
+    /// well-conditioned eigenvalue by a small multiple of `ε‖A‖` (Wilkinson 1965), so a
+    /// pivot below it may stand for an exact zero. The norms are those of the balanced
+    /// matrices for Lyapunov equations. With the same constants as
+    /// [`crate::numeric::linalg::hammarling::stability_violation`], every matrix that test
+    /// accepts as stable gives pivots of real eigenvalue pairs above the floor (for a
+    /// complex pair the pivot of complete pivoting estimates the separation), so a Gramian
+    /// is not refused here after the stability check passed. Bartels & Stewart (1972) test the pivots of the
+    /// small block systems the same way; Golub, Nash & Van Loan (1979), "A Hessenberg–Schur
+    /// method for the problem AX + XB = C", IEEE Trans. Automatic Control 24, bound the
+    /// forward error by `ε‖A‖/sep`, which is why the floor is relative to each pair and
+    /// not to ‖A‖ alone: a stiff `diag(−1e6, −1e-6)` has a slow pair with
+    /// `λ + μ = −2e-6` known to full relative accuracy. Default `1e-12`.
     pub resonance_tol: f64,
     /// Largest accepted `‖Q − Qᵀ‖_F / ‖Q‖_F` for the symmetric right-hand side of a
     /// Lyapunov equation (default `1e-10`); the symmetric part of `Q` is used.
@@ -75,9 +97,9 @@ pub fn solve_sylvester(
 /// **Cost.** Two real Schur decompositions (about 25m³ + 25n³ flops) plus
 /// `O(m²n + mn²)` for the back substitution and the transformations.
 ///
-/// **Tolerance.** `params.resonance_tol` bounds the relative separation as described in
-/// [`MatrixEquationParams`]; below it the result is [`NumError::NoSolution`] naming the
-/// separation and the offending eigenvalues.
+/// **Tolerance.** Every block pair is judged on its own scale as described in
+/// [`MatrixEquationParams::resonance_tol`]; at or below the floor the result is
+/// [`NumError::NoSolution`] naming the separation and the offending eigenvalues.
 pub fn solve_sylvester_with(
     a: &DMatrix<f64>,
     b: &DMatrix<f64>,
@@ -94,17 +116,15 @@ pub fn solve_sylvester_with(
     let (u, s) = real_schur(a, "A", params)?;
     let (v, r) = real_schur(b, "B", params)?;
     let g = u.transpose() * c * &v;
-    let scale = a.norm() + b.norm();
-    let y = solve_quasi_triangular(&s, &r, g, Kind::Continuous, params.resonance_tol * scale)
-        .map_err(|res| {
-            resonance_error(
-                "Sylvester equation A X + X B = C",
-                "A and −B have (nearly) common eigenvalues, λᵢ + μⱼ ≈ 0",
-                &res,
-                scale,
-                params,
-            )
-        })?;
+    let floor = Floor::new(params, a.norm(), b.norm());
+    let y = solve_quasi_triangular(&s, &r, g, Kind::Continuous, &floor).map_err(|res| {
+        resonance_error(
+            "Sylvester equation A X + X B = C",
+            "A and −B have (nearly) common eigenvalues, λᵢ + μⱼ ≈ 0",
+            &res,
+            params,
+        )
+    })?;
     let x = &u * y * v.transpose();
     finite_solution("Sylvester equation A X + X B = C", x)
 }
@@ -131,8 +151,9 @@ pub fn solve_lyapunov(a: &DMatrix<f64>, q: &DMatrix<f64>) -> NumResult<DMatrix<f
 /// **Cost.** One real Schur decomposition (about 25n³ flops) plus `O(n³)`.
 ///
 /// **Tolerance.** `Q` must be symmetric to `params.symmetry_tol` (relative, Frobenius);
-/// pivots are judged against `params.resonance_tol · 2‖A‖_F` (see
-/// [`MatrixEquationParams`]).
+/// the pivot of each eigenvalue pair is judged against
+/// `max(params.resonance_tol·(|λᵢ| + |λⱼ|), 16ε‖Ã‖_F)`, Ã the balanced `A` (see
+/// [`MatrixEquationParams::resonance_tol`]).
 pub fn solve_lyapunov_with(
     a: &DMatrix<f64>,
     q: &DMatrix<f64>,
@@ -165,8 +186,8 @@ pub fn solve_lyapunov_discrete(a: &DMatrix<f64>, q: &DMatrix<f64>) -> NumResult<
 ///
 /// **Cost.** One real Schur decomposition (about 25n³ flops) plus `O(n³)`.
 ///
-/// **Tolerance.** As [`solve_lyapunov_with`], with pivots judged against
-/// `params.resonance_tol · (1 + ‖A‖_F²)`.
+/// **Tolerance.** As [`solve_lyapunov_with`], with the pivot of each eigenvalue pair judged
+/// against `max(params.resonance_tol·(1 + |λᵢ||λⱼ|), 8ε‖Ã‖_F(|λᵢ| + |λⱼ|))`.
 pub fn solve_lyapunov_discrete_with(
     a: &DMatrix<f64>,
     q: &DMatrix<f64>,
@@ -184,11 +205,81 @@ enum Kind {
     Discrete,
 }
 
-/// A block pivot that fell to the threshold: where, and how small.
+/// Rounding level of a computed eigenvalue per unit of the matrix norm: a backward-stable
+/// Schur form moves a well-conditioned eigenvalue by a small multiple of `ε‖A‖` (Wilkinson
+/// 1965, *The Algebraic Eigenvalue Problem*, ch. 2). The same constant as
+/// [`crate::numeric::linalg::hammarling::stability_violation`] judges stability with.
+pub(crate) const EIGENVALUE_ROUNDING: f64 = 8.0 * f64::EPSILON;
+
+/// The pivot floor of one block pair, from the relative tolerance and the rounding levels
+/// of the two coefficient matrices (see [`MatrixEquationParams::resonance_tol`]).
+#[derive(Debug, Clone, Copy)]
+struct Floor {
+    /// Relative separation tolerance.
+    tol: f64,
+    /// Absolute rounding level of an eigenvalue of `S`: 8ε‖S‖_F.
+    round_s: f64,
+    /// Absolute rounding level of an eigenvalue of `R`: 8ε‖R‖_F.
+    round_r: f64,
+}
+
+impl Floor {
+    fn new(params: &MatrixEquationParams, norm_s: f64, norm_r: f64) -> Floor {
+        Floor {
+            tol: params.resonance_tol,
+            round_s: EIGENVALUE_ROUNDING * norm_s,
+            round_r: EIGENVALUE_ROUNDING * norm_r,
+        }
+    }
+
+    /// `(floor, local scale)` for a pair of diagonal blocks whose eigenvalues have moduli
+    /// `rs` (block of `S`) and `rr` (block of `R`).
+    fn for_pair(&self, kind: Kind, rs: f64, rr: f64) -> (f64, f64) {
+        match kind {
+            Kind::Continuous => {
+                let local = rs + rr;
+                ((self.tol * local).max(self.round_s + self.round_r), local)
+            }
+            Kind::Discrete => {
+                let local = 1.0 + rs * rr;
+                (
+                    (self.tol * local).max(self.round_s * rr + self.round_r * rs),
+                    local,
+                )
+            }
+        }
+    }
+}
+
+/// The largest eigenvalue modulus of each diagonal block of a quasi-triangular matrix.
+fn block_radii(t: &DMatrix<f64>, blocks: &[(usize, usize)]) -> Vec<f64> {
+    blocks
+        .iter()
+        .map(|&(k, size)| {
+            if size == 1 {
+                return t[(k, k)].abs();
+            }
+            let z = block_eigenvalue(t, k, size);
+            if z.im != 0.0 {
+                z.norm()
+            } else {
+                // A real pair in an unsplit block: the other root from the trace.
+                let other = t[(k, k)] + t[(k + 1, k + 1)] - z.re;
+                z.re.abs().max(other.abs())
+            }
+        })
+        .collect()
+}
+
+/// A block pivot that fell to the floor: where, and how small.
 #[derive(Debug, Clone)]
 struct Resonance {
     /// Absolute value of the rejected pivot.
     pivot: f64,
+    /// The floor it fell to.
+    floor: f64,
+    /// The local scale of the pair (`|λ| + |μ|`, or `1 + |λ||μ|` for the discrete form).
+    local: f64,
     /// An eigenvalue of the diagonal block of `S` involved.
     lambda: Complex<f64>,
     /// An eigenvalue of the diagonal block of `R` involved.
@@ -238,20 +329,20 @@ fn lyapunov_balanced(
     // F J with F = −Uᵀ Q U: reversing the columns of F.
     let f = -(u.transpose() * q * &u);
     let fj = reverse_columns(&f);
-    let (scale, what, cause) = match kind {
+    let (what, cause) = match kind {
         Kind::Continuous => (
-            2.0 * a.norm(),
             "Lyapunov equation A X + X Aᵀ + Q = 0",
             "A has eigenvalues with λᵢ + λⱼ ≈ 0 (symmetric about the imaginary axis)",
         ),
         Kind::Discrete => (
-            1.0 + a.norm_squared(),
             "discrete Lyapunov equation A X Aᵀ − X + Q = 0",
             "A has eigenvalues with λᵢλⱼ ≈ 1 (reciprocal about the unit circle)",
         ),
     };
-    let z = solve_quasi_triangular(&s, &r, fj, kind, params.resonance_tol * scale)
-        .map_err(|res| resonance_error(what, cause, &res, scale, params))?;
+    // Both sides are the (balanced) A: the same rounding level for λᵢ and λⱼ.
+    let floor = Floor::new(params, a.norm(), a.norm());
+    let z = solve_quasi_triangular(&s, &r, fj, kind, &floor)
+        .map_err(|res| resonance_error(what, cause, &res, params))?;
     let y = reverse_columns(&z);
     let x = &u * y * u.transpose();
     let x = (&x + x.transpose()) * 0.5;
@@ -333,30 +424,34 @@ pub(crate) fn block_eigenvalue(t: &DMatrix<f64>, start: usize, size: usize) -> C
 }
 
 /// Solves `S Z + Z R = G` (continuous) or `S Z R − Z = G` (discrete) for upper
-/// quasi-triangular `S` (m×m) and `R` (n×n); `threshold` is the absolute pivot floor.
+/// quasi-triangular `S` (m×m) and `R` (n×n); `floor` gives the pivot floor of each block
+/// pair.
 fn solve_quasi_triangular(
     s: &DMatrix<f64>,
     r: &DMatrix<f64>,
     g: DMatrix<f64>,
     kind: Kind,
-    threshold: f64,
+    floor: &Floor,
 ) -> Result<DMatrix<f64>, Resonance> {
     if kind == Kind::Continuous {
-        return solve_continuous_by_columns(s, r, g, threshold);
+        return solve_continuous_by_columns(s, r, g, floor);
     }
     let (m, n) = (s.nrows(), r.nrows());
     let sb = quasi_blocks(s).map_err(|_| no_schur())?;
     let rb = quasi_blocks(r).map_err(|_| no_schur())?;
+    let s_radii = block_radii(s, &sb);
+    let r_radii = block_radii(r, &rb);
     let mut z = g;
     // Discrete only: V = Z R, filled block by block as Z becomes known.
     let mut v = match kind {
         Kind::Discrete => DMatrix::zeros(m, n),
         Kind::Continuous => DMatrix::zeros(0, 0),
     };
-    for &(k0, p) in sb.iter().rev() {
+    for (kb, &(k0, p)) in sb.iter().enumerate().rev() {
         let k1 = k0 + p;
-        for &(l0, q) in rb.iter() {
+        for (lb, &(l0, q)) in rb.iter().enumerate() {
             let l1 = l0 + q;
+            let (threshold, local) = floor.for_pair(kind, s_radii[kb], r_radii[lb]);
             let mut rhs = z.view((k0, l0), (p, q)).clone_owned();
             match kind {
                 Kind::Continuous => {
@@ -382,6 +477,8 @@ fn solve_quasi_triangular(
             let block =
                 solve_block(&skk, &rll, &rhs, kind, threshold).map_err(|pivot| Resonance {
                     pivot,
+                    floor: threshold,
+                    local,
                     lambda: block_eigenvalue(s, k0, p),
                     mu: block_eigenvalue(r, l0, q),
                 })?;
@@ -401,22 +498,24 @@ fn solve_quasi_triangular(
 /// then the quasi-triangular system `S·Z[:, l] + Z[:, l]·R[l, l] = …` from the bottom block
 /// up, each solved block updating the rows above it by a column of `S`. Every inner loop
 /// runs down a contiguous column of the column-major storage, and 1×1 blocks allocate
-/// nothing. `threshold` is the absolute pivot floor.
+/// nothing. `floor` gives the pivot floor of each block pair.
 fn solve_continuous_by_columns(
     s: &DMatrix<f64>,
     r: &DMatrix<f64>,
     g: DMatrix<f64>,
-    threshold: f64,
+    floor: &Floor,
 ) -> Result<DMatrix<f64>, Resonance> {
     let m = s.nrows();
     let sb = quasi_blocks(s).map_err(|_| no_schur())?;
     let rb = quasi_blocks(r).map_err(|_| no_schur())?;
+    let s_radii = block_radii(s, &sb);
+    let r_radii = block_radii(r, &rb);
     let mut z = g;
     if m == 0 {
         return Ok(z);
     }
     let sd = s.as_slice();
-    for &(l0, q) in rb.iter() {
+    for (lb, &(l0, q)) in rb.iter().enumerate() {
         // Right-hand side: columns l0..l0+q minus Z[:, 0..l0]·R[0..l0, l0..l0+q].
         {
             let (left, right) = z.as_mut_slice().split_at_mut(l0 * m);
@@ -430,9 +529,12 @@ fn solve_continuous_by_columns(
                 }
             }
         }
-        for &(k0, p) in sb.iter().rev() {
+        for (kb, &(k0, p)) in sb.iter().enumerate().rev() {
+            let (threshold, local) = floor.for_pair(Kind::Continuous, s_radii[kb], r_radii[lb]);
             let resonance = |pivot| Resonance {
                 pivot,
+                floor: threshold,
+                local,
                 lambda: block_eigenvalue(s, k0, p),
                 mu: block_eigenvalue(r, l0, q),
             };
@@ -486,6 +588,8 @@ fn solve_continuous_by_columns(
 fn no_schur() -> Resonance {
     Resonance {
         pivot: f64::NAN,
+        floor: f64::NAN,
+        local: f64::NAN,
         lambda: Complex::new(f64::NAN, 0.0),
         mu: Complex::new(f64::NAN, 0.0),
     }
@@ -592,7 +696,6 @@ fn resonance_error(
     what: &str,
     cause: &str,
     res: &Resonance,
-    scale: f64,
     params: &MatrixEquationParams,
 ) -> NumError {
     if res.pivot.is_nan() {
@@ -602,28 +705,50 @@ fn resonance_error(
             iterations: 0,
         };
     }
-    let separation = if scale > 0.0 { res.pivot / scale } else { 0.0 };
+    let separation = if res.local > 0.0 {
+        res.pivot / res.local
+    } else {
+        0.0
+    };
+    let relative_floor = if res.local > 0.0 {
+        res.floor / res.local
+    } else {
+        params.resonance_tol
+    };
     NumError::no_solution(
         what,
         format!(
-            "{cause}: relative separation {separation:.3e} is at or below the tolerance \
-             {:.1e} (eigenvalues near {} and {}); the solution is not unique or is \
-             dominated by rounding",
-            params.resonance_tol,
+            "{cause}: for the eigenvalues near {} and {} the relative separation \
+             {separation:.3e} (block pivot {:.3e}) is at or below the floor \
+             {relative_floor:.1e}, the larger of the tolerance {:.1e} and the rounding level \
+             of the computed eigenvalues; the solution is not unique or is dominated by \
+             rounding",
             fmt_complex(res.lambda),
             fmt_complex(res.mu),
+            res.pivot,
+            params.resonance_tol,
         ),
     )
 }
 
-/// Formats a complex number compactly for messages: `-1.5`, `-0.5+2i`.
+/// Formats a complex number compactly for messages: `-1.500000`, `-0.500000+2.000000i`;
+/// parts of magnitude below 1e-3 or from 1e7 on in exponent form (`-1.000000e-6`), so that
+/// a slow or fast eigenvalue is not printed as `-0.000000` or as a long digit string.
 pub(crate) fn fmt_complex(z: Complex<f64>) -> String {
+    fn part(x: f64) -> String {
+        let a = x.abs();
+        if a == 0.0 || (1e-3..1e7).contains(&a) || !a.is_finite() {
+            format!("{x:.6}")
+        } else {
+            format!("{x:.6e}")
+        }
+    }
     if z.im == 0.0 {
-        format!("{:.6}", z.re)
+        part(z.re)
     } else if z.im > 0.0 {
-        format!("{:.6}+{:.6}i", z.re, z.im)
+        format!("{}+{}i", part(z.re), part(z.im))
     } else {
-        format!("{:.6}-{:.6}i", z.re, -z.im)
+        format!("{}-{}i", part(z.re), part(-z.im))
     }
 }
 
