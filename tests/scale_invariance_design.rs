@@ -195,3 +195,45 @@ fn singular_equations_are_still_refused_at_every_scale() {
     assert!(text.contains("relative separation"), "{text}");
     assert!(text.contains("rounding level"), "{text}");
 }
+
+/// `T⁻ᵀ Q T⁻¹` for `T = diag(t)`: the same cost in the new state `T x`.
+fn cost_in_new_units(q: &DMatrix<f64>, t: &[f64]) -> DMatrix<f64> {
+    DMatrix::from_fn(q.nrows(), q.ncols(), |i, j| q[(i, j)] / (t[i] * t[j]))
+}
+
+#[test]
+fn riccati_solutions_follow_the_state_units() {
+    // The same regulator problem in the state T x: A' = T A T⁻¹, B' = T B, Q' = T⁻ᵀQT⁻¹
+    // give X' = T⁻ᵀXT⁻¹ and the same closed-loop poles. Main refused T = diag(1e-3, 1e3)
+    // as "uncontrollable, on the imaginary axis": its boundary test was relative to ‖H‖.
+    use statebook::numeric::design::riccati::{solve_riccati, solve_riccati_discrete};
+    let a = DMatrix::from_row_slice(2, 2, &[0.0, 1.0, -1.0, -0.2]);
+    let b = DMatrix::from_row_slice(2, 1, &[0.0, 1.0]);
+    let q = DMatrix::identity(2, 2);
+    let r = DMatrix::from_element(1, 1, 1.0);
+    let ad = DMatrix::from_row_slice(2, 2, &[1.0, 0.1, -0.1, 0.98]);
+    let x = solve_riccati(&a, &b, &q, &r).expect("continuous");
+    let xd = solve_riccati_discrete(&ad, &b, &q, &r).expect("discrete");
+    // The case main refused, with Q = I in the new units (a different, well-posed problem).
+    let (at, bt) = rescale(&a, &b, &[1e-3, 1e3]);
+    let sol = solve_riccati(&at, &bt, &q, &r).expect("Q = I in scaled units: solved");
+    assert!(sol.residual < 1e-13, "residual {}", sol.residual);
+    assert!(sol.closed_loop_poles.iter().all(|z| z.re < 0.0));
+    let mut scalings = scalings_2();
+    scalings.push([1e-6, 1e6]);
+    scalings.push([1e6, 1e-6]);
+    for t in scalings {
+        let inv = [1.0 / t[0], 1.0 / t[1]];
+        let qt = cost_in_new_units(&q, &t);
+        let (at, bt) = rescale(&a, &b, &t);
+        let xt = solve_riccati(&at, &bt, &qt, &r)
+            .unwrap_or_else(|e| panic!("T = diag({t:?}): refused: {e}"));
+        let back = cost_in_new_units(&xt.x, &inv);
+        assert_entries(&back, &x.x, 1e-9, &format!("continuous, T = diag({t:?})"));
+        let (adt, bdt) = rescale(&ad, &b, &t);
+        let xdt = solve_riccati_discrete(&adt, &bdt, &qt, &r)
+            .unwrap_or_else(|e| panic!("discrete, T = diag({t:?}): refused: {e}"));
+        let back = cost_in_new_units(&xdt.x, &inv);
+        assert_entries(&back, &xd.x, 1e-9, &format!("discrete, T = diag({t:?})"));
+    }
+}

@@ -376,9 +376,161 @@ fn empty(m: usize) -> Riccati {
 }
 
 // ------------------------------------------------------------------------------------------
+// Balanced state coordinates
+
+/// Solves in balanced state coordinates and maps the answer back.
+///
+/// With `x = D z` for a positive diagonal `D` (powers of two, so the change is exact) the
+/// equations keep their form with `A_z = D⁻¹AD`, `B_z = D⁻¹B`, `Q_z = DQD` and the same
+/// `R`; their solutions are related by `X = D⁻¹X_zD⁻¹` and `K = K_zD⁻¹`, and the closed-loop
+/// poles are the same. So every decision of the solvers (the distance of the Hamiltonian
+/// eigenvalues from the axis, the closed-loop stability band, the PBH tests, the rounding
+/// levels) is taken on data whose size does not depend on the units of the states
+/// (NUMERICS.md § Scale invariance). `D` comes from [`symplectic_scaling`]. Inputs of the
+/// wrong shape or with non-finite entries go through unscaled, so that the solver's own
+/// checks name them.
+fn in_balanced_states(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    q: &DMatrix<f64>,
+    r: &DMatrix<f64>,
+    solve: impl Fn(&DMatrix<f64>, &DMatrix<f64>, &DMatrix<f64>) -> NumResult<Riccati>,
+) -> NumResult<Riccati> {
+    let n = a.nrows();
+    let shapes_ok = a.ncols() == n
+        && b.nrows() == n
+        && q.shape() == (n, n)
+        && r.shape() == (b.ncols(), b.ncols());
+    let finite = |m: &DMatrix<f64>| m.iter().all(|v| v.is_finite());
+    if n < 2 || !shapes_ok || !(finite(a) && finite(b) && finite(q) && finite(r)) {
+        return solve(a, b, q);
+    }
+    let d = symplectic_scaling(a, b, q, r);
+    if d.iter().all(|&v| v == 1.0) {
+        return solve(a, b, q);
+    }
+    let az = DMatrix::from_fn(n, n, |i, j| a[(i, j)] * d[j] / d[i]);
+    let bz = DMatrix::from_fn(n, b.ncols(), |i, j| b[(i, j)] / d[i]);
+    let qz = DMatrix::from_fn(n, n, |i, j| d[i] * q[(i, j)] * d[j]);
+    let mut sol = solve(&az, &bz, &qz)?;
+    sol.x = DMatrix::from_fn(n, n, |i, j| sol.x[(i, j)] / (d[i] * d[j]));
+    let m = sol.gain.nrows();
+    sol.gain = DMatrix::from_fn(m, n, |i, j| sol.gain[(i, j)] / d[j]);
+    Ok(sol)
+}
+
+/// A diagonal state scaling `D` (powers of two) that balances the Hamiltonian
+/// `[[A, −G], [−Q, −Aᵀ]]` (`G = BR⁻¹Bᵀ`) by the symplectic similarity `diag(D, D⁻¹)`,
+/// the structure-preserving balancing of Benner (2000), "Symplectic balancing of
+/// Hamiltonian matrices", SIAM J. Sci. Comput. 22(5). The similarity multiplies column `i`
+/// of `A` and row `i` of `Q` by `dᵢ` (and row `i` of `A` by `1/dᵢ`), entry `Qᵢᵢ` by `dᵢ²`
+/// and `Gᵢᵢ` by `1/dᵢ²`; each `dᵢ` in turn is the power of two that minimises the squared
+/// Frobenius norm of the scaled Hamiltonian, sweeping until no `dᵢ` changes (Parlett &
+/// Reinsch 1969 use the same cyclic, power-of-two scheme for one matrix). `G` is taken as
+/// `B·diag(R)⁻¹·Bᵀ` in magnitude, which is enough to choose units. The same `D` serves the
+/// discrete equation, whose symplectic pencil transforms alike.
+fn symplectic_scaling(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    q: &DMatrix<f64>,
+    r: &DMatrix<f64>,
+) -> Vec<f64> {
+    let n = a.nrows();
+    // Magnitudes scaled by a power of two so that squares cannot overflow.
+    let mut big = 0.0f64;
+    for v in a.iter().chain(q.iter()) {
+        big = big.max(v.abs());
+    }
+    let g = DMatrix::from_fn(n, n, |i, j| {
+        (0..b.ncols())
+            .map(|k| {
+                let rk = r[(k, k)].abs();
+                if rk > 0.0 {
+                    (b[(i, k)] * b[(j, k)]).abs() / rk
+                } else {
+                    0.0
+                }
+            })
+            .sum::<f64>()
+    });
+    for v in g.iter() {
+        big = big.max(*v);
+    }
+    if !(big.is_finite() && big > 0.0) {
+        return vec![1.0; n];
+    }
+    let unit = 2f64.powi(-big.log2().floor() as i32);
+    let sq = |v: f64| (v * unit) * (v * unit);
+    let aa = a.map(sq);
+    let qq = q.map(sq);
+    let gg = g.map(sq);
+    let mut d = vec![1.0f64; n];
+    for _sweep in 0..64 {
+        let mut changed = false;
+        for i in 0..n {
+            // Squared norms that scale by dᵢ² (up), 1/dᵢ² (down), dᵢ⁴ and 1/dᵢ⁴, with the
+            // other scalings applied.
+            let (mut up, mut down) = (0.0, 0.0);
+            for j in 0..n {
+                if j == i {
+                    continue;
+                }
+                let rj = d[j] * d[j];
+                // A[j][i]·dᵢ/dⱼ and its copy in −Aᵀ; A[i][j]·dⱼ/dᵢ and its copy.
+                up += 2.0 * aa[(j, i)] / rj;
+                down += 2.0 * aa[(i, j)] * rj;
+                // Q[i][j]·dᵢdⱼ (and Q[j][i]); G[i][j]/(dᵢdⱼ).
+                up += 2.0 * qq[(i, j)] * rj;
+                down += 2.0 * gg[(i, j)] / rj;
+            }
+            let (q4, g4) = (qq[(i, i)], gg[(i, i)]);
+            let cost = |s: f64| up * s * s + down / (s * s) + q4 * s.powi(4) + g4 / s.powi(4);
+            let mut s = d[i];
+            let mut best = cost(s);
+            for step in [2.0, 0.5] {
+                loop {
+                    let t = s * step;
+                    if !(1e-150..=1e150).contains(&t) {
+                        break;
+                    }
+                    let c = cost(t);
+                    if c < 0.95 * best {
+                        best = c;
+                        s = t;
+                    } else {
+                        break;
+                    }
+                }
+            }
+            if s != d[i] {
+                d[i] = s;
+                changed = true;
+            }
+        }
+        if !changed {
+            break;
+        }
+    }
+    d
+}
+
+// ------------------------------------------------------------------------------------------
 // Continuous time
 
 pub(crate) fn continuous_impl(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    q: &DMatrix<f64>,
+    r: &DMatrix<f64>,
+    params: &RiccatiParams,
+    roles: &Roles,
+) -> NumResult<Riccati> {
+    in_balanced_states(a, b, q, r, |a, b, q| {
+        continuous_unscaled(a, b, q, r, params, roles)
+    })
+}
+
+fn continuous_unscaled(
     a: &DMatrix<f64>,
     b: &DMatrix<f64>,
     q: &DMatrix<f64>,
@@ -538,6 +690,19 @@ fn continuous_gain(b: &DMatrix<f64>, pr: &Prepared, x: &DMatrix<f64>) -> NumResu
 // Discrete time
 
 pub(crate) fn discrete_impl(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    q: &DMatrix<f64>,
+    r: &DMatrix<f64>,
+    params: &RiccatiParams,
+    roles: &Roles,
+) -> NumResult<Riccati> {
+    in_balanced_states(a, b, q, r, |a, b, q| {
+        discrete_unscaled(a, b, q, r, params, roles)
+    })
+}
+
+fn discrete_unscaled(
     a: &DMatrix<f64>,
     b: &DMatrix<f64>,
     q: &DMatrix<f64>,
