@@ -31,6 +31,7 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     lti::BUILTINS,
     lti::FILE_BUILTINS,
     files::BUILTINS,
+    complex::BUILTINS,
 ];
 
 /// Help tables of the binding files not yet written as declarations.
