@@ -32,6 +32,7 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     lti::FILE_BUILTINS,
     files::BUILTINS,
     complex::BUILTINS,
+    output::BUILTINS,
 ];
 
 /// Help tables of the binding files not yet written as declarations.
