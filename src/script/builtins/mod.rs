@@ -33,6 +33,8 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     files::BUILTINS,
     complex::BUILTINS,
     output::BUILTINS,
+    time::BUILTINS,
+    time::PLOT_BUILTINS,
 ];
 
 /// Help tables of the binding files not yet written as declarations.
