@@ -16,14 +16,6 @@ pub const DOCS: &[Doc] = &[
         example: "integer_quotient(7, 2)   // 3, while 7 / 2 is 3.5",
     },
     Doc {
-        name: "set_precision",
-        family: "numbers",
-        usage: "set_precision(digits)",
-        summary: "significant digits used when numbers, matrices and models are displayed",
-        details: "digits: 1 to 17 (default 6). Affects display only, never the computation.",
-        example: "set_precision(10);\nshow(identity(2) / 3);",
-    },
-    Doc {
         name: "pi",
         family: "numbers",
         usage: "pi → float",

@@ -1,30 +1,15 @@
 //! Complex scalars and complex matrices: construction, parts, and arithmetic.
 
-use crate::script::convert::{fail, num, to_count, to_f64, Rr};
+use crate::script::convert::{fail, num, to_count, type_name, Rr};
+use crate::script::declare::{Call, Param};
 use crate::script::docs::Doc;
 use crate::script::types::{Complex, ComplexMatrix, Matrix};
 use nalgebra::Complex as C;
 use rhai::{Dynamic, Engine, FLOAT, INT};
 
-/// Help entries of this file.
+/// Help pages of the parts, registered by hand in [`register`] as properties (`z.re`,
+/// `M.im`, …); the functions are declared in `BUILTINS`.
 pub const DOCS: &[Doc] = &[
-    Doc {
-        name: "complex",
-        family: "numbers",
-        usage: "complex(re, im) → Complex",
-        summary: "a complex number re + im·j",
-        details: "Parts: z.re, z.im, z.abs (modulus), z.arg (angle in radians); z.conj().\n\
-                  Arithmetic with + - * / mixes freely with ints and floats.",
-        example: "let z = complex(-0.5, 1.2);\nz.abs",
-    },
-    Doc {
-        name: "conj",
-        family: "numbers",
-        usage: "z.conj() → Complex",
-        summary: "the complex conjugate",
-        details: "",
-        example: "complex(1, 2).conj()",
-    },
     Doc {
         name: "re",
         family: "numbers",
@@ -59,25 +44,69 @@ pub const DOCS: &[Doc] = &[
     },
 ];
 
+/// A Complex or a ComplexMatrix value (what `conj` takes).
+enum ComplexValue {
+    Scalar(Complex),
+    Matrix(ComplexMatrix),
+}
+
+impl Param for ComplexValue {
+    const KIND: &'static str = "Complex | ComplexMatrix";
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        if let Some(z) = v.read_lock::<Complex>() {
+            return Ok(ComplexValue::Scalar(*z));
+        }
+        if let Some(m) = v.read_lock::<ComplexMatrix>() {
+            return Ok(ComplexValue::Matrix(m.clone()));
+        }
+        Err(call.fail(format_args!(
+            "{arg} must be a Complex or a ComplexMatrix, found {}",
+            type_name(&v)
+        )))
+    }
+}
+
+crate::builtins! {
+    /// a complex number re + im·j
+    ///
+    /// Parts: z.re, z.im, z.abs (modulus), z.arg (angle in radians); z.conj().
+    /// Arithmetic with + - * / mixes freely with ints and floats.
+    ///
+    /// example:
+    ///     let z = complex(-0.5, 1.2);
+    ///     z.abs
+    #[family = "numbers"]
+    fn complex(call, re: FLOAT, im: FLOAT) -> Complex {
+        Ok(cx(re, im))
+    }
+
+    /// the complex conjugate
+    ///
+    /// Of a Complex, or entry by entry of a ComplexMatrix. As a method: z.conj().
+    ///
+    /// example:
+    ///     complex(1, 2).conj()
+    #[family = "numbers"]
+    fn conj(call, z: ComplexValue) -> Dynamic as "Complex | ComplexMatrix" {
+        Ok(match z {
+            ComplexValue::Scalar(z) => Dynamic::from(Complex(z.0.conj())),
+            ComplexValue::Matrix(m) => Dynamic::from(ComplexMatrix(m.0.map(|z| z.conj()))),
+        })
+    }
+}
+
 fn cx(re: FLOAT, im: FLOAT) -> Complex {
     Complex(C::new(re, im))
 }
 
-/// Registers complex types and operators.
+/// Registers the parts (properties), the operators, and the Complex overloads of the
+/// number functions of `arith` (typed, beside their number forms); the functions of this
+/// file are declared in `BUILTINS`.
 pub fn register(engine: &mut Engine) {
-    engine.register_type_with_name::<Complex>("Complex");
-    engine.register_type_with_name::<ComplexMatrix>("ComplexMatrix");
-    engine.register_fn("complex", |re: Dynamic, im: Dynamic| -> Rr<Complex> {
-        Ok(cx(
-            to_f64(&re, "complex", "re")?,
-            to_f64(&im, "complex", "im")?,
-        ))
-    });
     engine.register_get("re", |z: &mut Complex| z.0.re);
     engine.register_get("im", |z: &mut Complex| z.0.im);
     engine.register_get("abs", |z: &mut Complex| z.0.norm());
     engine.register_get("arg", |z: &mut Complex| z.0.arg());
-    engine.register_fn("conj", |z: Complex| Complex(z.0.conj()));
     engine.register_fn("abs", |z: Complex| z.0.norm());
     engine.register_fn("sqrt", |z: Complex| Complex(z.0.sqrt()));
     engine.register_fn("exp", |z: Complex| Complex(z.0.exp()));
@@ -133,9 +162,6 @@ pub fn register(engine: &mut Engine) {
     );
     engine.register_fn("transpose", |m: ComplexMatrix| {
         ComplexMatrix(m.0.transpose())
-    });
-    engine.register_fn("conj", |m: ComplexMatrix| {
-        ComplexMatrix(m.0.map(|z| z.conj()))
     });
     engine.register_fn(
         "*",

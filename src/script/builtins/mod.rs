@@ -31,6 +31,10 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     lti::BUILTINS,
     lti::FILE_BUILTINS,
     files::BUILTINS,
+    complex::BUILTINS,
+    output::BUILTINS,
+    time::BUILTINS,
+    time::PLOT_BUILTINS,
 ];
 
 /// Help tables of the binding files not yet written as declarations.

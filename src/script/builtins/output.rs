@@ -3,141 +3,135 @@
 
 use crate::display::Style;
 use crate::notebook::output::Output;
-use crate::script::convert::{fail, to_count, to_str, Rr};
+use crate::script::convert::{fail, Rr};
 use crate::script::docs::Doc;
 use crate::script::state::{self, SessionState};
 use crate::script::{json, show};
-use rhai::{Dynamic, Engine, NativeCallContext};
+use rhai::{Dynamic, Engine};
 use std::sync::Arc;
 
-/// Help entries of this file.
-pub const DOCS: &[Doc] = &[
-    Doc {
-        name: "print",
-        family: "output and files",
-        usage: "print(value)",
-        summary: "writes a value as plain text into the current cell's output",
-        details: "",
-        example: "print(\"settling time: \" + 1.25);",
-    },
-    Doc {
-        name: "show",
-        family: "output and files",
-        usage: "show(value)",
-        summary: "displays a value richly (matrices aligned, figures drawn in reports)",
-        details: "The value of a cell's last expression is shown the same way.",
-        example: "show(identity(2));",
-    },
-    Doc {
-        name: "note",
-        family: "output and files",
-        usage: "note(markdown)",
-        summary: "adds Markdown prose to the current cell's output (and report)",
-        details: "",
-        example: "note(\"The plant is **stable** at this operating point.\");",
-    },
-    Doc {
-        name: "record",
-        family: "output and files",
-        usage: "record(name, value)",
-        summary: "keeps a named result; `render` saves it and `check` compares re-runs",
-        details: "name: a string. value: any value that to_json can encode. Recording the same \
-                  name again replaces the value.",
-        example: "record(\"dominant_pole\", -0.42);",
-    },
-    Doc {
-        name: "to_json",
-        family: "output and files",
-        usage: "to_json(value) → string",
-        summary: "the JSON encoding of a value",
-        details: "Matrix → array of rows; Complex → {\"re\", \"im\"}; System → {A, B, C, D, dt}; \
-                  TransferFunction → {num, den, dt}; Response → {t, y, x, u}; () → null. \
-                  Infinite and NaN floats are written as the strings \"inf\", \"-inf\", \"nan\".",
-        example: "to_json(complex(1, -2))   // {\"re\":1.0,\"im\":-2.0}",
-    },
-    Doc {
-        name: "require",
-        family: "output and files",
-        usage: "require(condition, message)",
-        summary: "stops the analysis with message unless condition is true",
-        details: "Use it for design requirements the analysis must meet, so that a failed \
-                  requirement fails `run`, `render` and `check`.",
-        example: "require(is_stable(plant), \"the plant must be stable\");",
-    },
-];
+/// The help page of `print`, the engine's own function (the rest are declared in
+/// `BUILTINS`).
+pub const DOCS: &[Doc] = &[Doc {
+    name: "print",
+    family: "output and files",
+    usage: "print(value)",
+    summary: "writes a value as plain text into the current cell's output",
+    details: "",
+    example: "print(\"settling time: \" + 1.25);",
+}];
 
-/// Registers the output built-ins of one session.
-pub fn register(engine: &mut Engine, st: &Arc<SessionState>) {
-    let s = st.clone();
-    engine.register_fn("show", move |ctx: NativeCallContext, v: Dynamic| {
-        emit(&s, &ctx, v);
-    });
-    engine.register_fn("note", |ctx: NativeCallContext, v: Dynamic| -> Rr<()> {
-        let text = to_str(&v, "note", "markdown")?;
-        if let Some(s) = state::of(&ctx) {
-            s.push(Output::Note(text));
-        }
-        Ok(())
-    });
-    engine.register_fn(
-        "record",
-        |ctx: NativeCallContext, name: Dynamic, v: Dynamic| -> Rr<()> {
-            let name = to_str(&name, "record", "name")?;
-            if name.trim().is_empty() {
-                return Err(fail("record: the name must not be empty"));
-            }
-            let value = json::encode_checked(&v, "record").map_err(fail)?;
-            if let Some(s) = state::of(&ctx) {
-                s.record(&name, value);
-            }
-            Ok(())
-        },
-    );
-    fn to_json(v: Dynamic) -> Rr<String> {
-        Ok(json::encode_checked(&v, "to_json")
-            .map_err(fail)?
-            .to_string())
-    }
-    engine.register_fn("to_json", to_json);
-    // The engine's own `to_json` for maps (and any later one for arrays) would otherwise
-    // be picked for these types and write nested values as Rust type names.
+/// Registers the map and array forms of `to_json` (the declarations are in `BUILTINS`).
+/// The engine's own `to_json` for maps (and any later one for arrays) takes these types
+/// exactly, so it would be picked before a declaration (whose parameters are any value)
+/// and write nested values as Rust type names.
+pub fn register(engine: &mut Engine, _: &Arc<SessionState>) {
     engine.register_fn("to_json", |m: rhai::Map| to_json(Dynamic::from_map(m)));
     engine.register_fn("to_json", |a: rhai::Array| to_json(Dynamic::from_array(a)));
-    engine.register_fn("require", |c: Dynamic, m: Dynamic| -> Rr<()> {
-        let Ok(ok) = c.as_bool() else {
-            return Err(fail(format!(
-                "require: condition must be true or false, found {}",
-                crate::script::convert::type_name(&c)
-            )));
-        };
-        if ok {
+}
+
+fn to_json(v: Dynamic) -> Rr<String> {
+    Ok(json::encode_checked(&v, "to_json")
+        .map_err(fail)?
+        .to_string())
+}
+
+crate::builtins! {
+    /// displays a value richly (matrices aligned, figures drawn in reports)
+    ///
+    /// The value of a cell's last expression is shown the same way.
+    ///
+    /// example:
+    ///     show(identity(2));
+    #[family = "output and files"]
+    fn show(call, value: Dynamic) -> () {
+        if let Some(s) = state::of(call.ctx()) {
+            emit(&s, value);
+        }
+        Ok(())
+    }
+
+    /// adds Markdown prose to the current cell's output (and report)
+    ///
+    /// example:
+    ///     note("The plant is **stable** at this operating point.");
+    #[family = "output and files"]
+    fn note(call, markdown: String) -> () {
+        if let Some(s) = state::of(call.ctx()) {
+            s.push(Output::Note(markdown));
+        }
+        Ok(())
+    }
+
+    /// keeps a named result; `render` saves it and `check` compares re-runs
+    ///
+    /// name: a string. value: any value that to_json can encode. Recording the same
+    /// name again replaces the value.
+    ///
+    /// example:
+    ///     record("dominant_pole", -0.42);
+    #[family = "output and files"]
+    fn record(call, name: String, value: Dynamic) -> () {
+        if name.trim().is_empty() {
+            return Err(call.fail("the name must not be empty"));
+        }
+        let value = json::encode_checked(&value, call.name).map_err(fail)?;
+        if let Some(s) = state::of(call.ctx()) {
+            s.record(&name, value);
+        }
+        Ok(())
+    }
+
+    /// the JSON encoding of a value
+    ///
+    /// Matrix → array of rows; Complex → {"re", "im"}; System → {A, B, C, D, dt};
+    /// TransferFunction → {num, den, dt}; Response → {t, y, x, u}; () → null.
+    /// Infinite and NaN floats are written as the strings "inf", "-inf", "nan".
+    ///
+    /// example:
+    ///     to_json(complex(1, -2))   // {"re":1.0,"im":-2.0}
+    #[family = "output and files"]
+    fn to_json(call, value: Dynamic) -> String {
+        to_json(value)
+    }
+
+    /// stops the analysis with message unless condition is true
+    ///
+    /// Use it for design requirements the analysis must meet, so that a failed
+    /// requirement fails `run`, `render` and `check`.
+    ///
+    /// example:
+    ///     require(is_stable(plant), "the plant must be stable");
+    #[family = "output and files"]
+    fn require(call, condition: bool, message: String) -> () {
+        if condition {
             Ok(())
         } else {
-            Err(fail(format!(
-                "requirement not met: {}",
-                to_str(&m, "require", "message")?
-            )))
+            Err(fail(format!("requirement not met: {message}")))
         }
-    });
-    engine.register_fn(
-        "set_precision",
-        |ctx: NativeCallContext, d: Dynamic| -> Rr<()> {
-            let d = to_count(&d, "set_precision", "digits")?;
-            if !(1..=17).contains(&d) {
-                return Err(fail(format!(
-                    "set_precision: digits must be 1 to 17, found {d}"
-                )));
-            }
-            if let Some(s) = state::of(&ctx) {
-                s.set_style(Style { precision: d });
-            }
-            Ok(())
-        },
-    );
+    }
+
+    /// significant digits used when numbers, matrices and models are displayed
+    ///
+    /// digits: 1 to 17 (default 6). Affects display only, never the computation.
+    ///
+    /// example:
+    ///     set_precision(10);
+    ///     show(identity(2) / 3);
+    #[family = "numbers"]
+    fn set_precision(call, digits: usize) -> () {
+        if !(1..=17).contains(&digits) {
+            return Err(call.fail(format_args!("digits must be 1 to 17, found {digits}")));
+        }
+        if let Some(s) = state::of(call.ctx()) {
+            s.set_style(Style { precision: digits });
+        }
+        Ok(())
+    }
 }
 
 /// Shows a value in the current cell: figures as figures, everything else as text.
-pub fn emit(s: &SessionState, _ctx: &NativeCallContext, v: Dynamic) {
+pub fn emit(s: &SessionState, v: Dynamic) {
     if let Some(o) = crate::script::builtins::figure_output(&v) {
         s.push(o);
         return;

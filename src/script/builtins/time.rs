@@ -11,14 +11,27 @@ use crate::script::convert::{
     fail, float_array, matrix_value, num, system_value, to_count, to_f64, to_f64_vec, to_matrix,
     to_str, to_system, type_name, Rr,
 };
+use crate::script::docs::Doc;
 use crate::script::state;
 use crate::script::types::Response;
 use nalgebra::DMatrix;
 use rhai::{Array, Dynamic, Engine, FnPtr, Map, NativeCallContext, FLOAT, INT};
 
-mod docs;
 mod plots;
-pub use docs::DOCS;
+pub use plots::BUILTINS as PLOT_BUILTINS;
+
+/// The page of the `Response` type and its properties, registered by hand in [`register`]
+/// (the functions are declared in `BUILTINS`, the plots in `plots.rs`).
+pub const DOCS: &[Doc] = &[Doc {
+    name: "Response",
+    family: "time domain",
+    usage: "resp.t → array (s)\nresp.y → Matrix (one row per sample, one column per output)\n\
+            resp.x → Matrix (states)\nresp.u → Matrix (inputs)",
+    summary: "a time response: samples of time, outputs, states and inputs",
+    details: "Returned by step_response, impulse_response, free_response, simulate and \
+              integrate_ode. Row k of y, x and u belongs to time t[k].",
+    example: "let r = step_response(plant, 5);\nr.y.get(r.y.rows - 1, 0)",
+}];
 
 /// States are kept by default unless samples × states exceeds this (8 MB of states).
 pub const STATE_KEEP_LIMIT: usize = 1_000_000;
@@ -554,9 +567,9 @@ fn linearize_fn(
         .map_err(num(name))
 }
 
-/// Registers the time-domain built-ins and the `Response` type.
+/// Registers the properties of a `Response` (`resp.t`, `resp.y`, …); the time-domain
+/// functions are declared in `BUILTINS`.
 pub fn register(engine: &mut Engine) {
-    engine.register_type_with_name::<Response>("Response");
     engine.register_get("t", |r: &mut Response| {
         Dynamic::from_array(float_array(&r.data.t))
     });
@@ -573,80 +586,188 @@ pub fn register(engine: &mut Engine) {
     });
     engine.register_fn("to_string", |r: &mut Response| r.summary());
     engine.register_fn("to_debug", |r: &mut Response| r.summary());
+}
 
-    engine.register_fn("discretize", |s: Dynamic, dt: Dynamic| {
-        discretize_fn(&s, &dt, Method::Zoh)
-    });
-    engine.register_fn("discretize", |s: Dynamic, dt: Dynamic, m: Dynamic| {
-        discretize_fn(&s, &dt, method_of(&m)?)
-    });
-    engine.register_fn("to_continuous", |s: Dynamic| -> Rr<Dynamic> {
-        let f = "to_continuous";
-        let sys = to_system(&s, f, "sys")?;
+crate::builtins! {
+    /// the discrete model with sample time dt (zero-order hold unless a method is given)
+    ///
+    /// dt in seconds (> 0); sys must be continuous (discretizing a discrete model is an
+    /// error). method: "zoh" (input held between samples), "foh" (triangle hold: input
+    /// linear between samples; states ξ[k] = x(t_k) − Γ₂u[k]), "tustin" (bilinear map;
+    /// prewarp w in rad/s, 0 < w < π/dt, makes the frequency response exact at w),
+    /// "impulse" (impulse invariance: hd[k] = dt·h(k·dt), so Bd = e^{A dt} B dt and Dd = C
+    /// B dt; needs D = 0), "matched" (single-input single-output: poles and finite zeros
+    /// mapped by z = e^{s dt}, zeros at infinity to z = −1, low-frequency gain matched).
+    /// Hold methods use one block matrix exponential (Van Loan 1978).
+    ///
+    /// example:
+    ///     let plant = state_space([[0, 1], [-4, -0.8]], [[0], [1]], [[1, 0]], 0);
+    ///     let pd = discretize(plant, 0.05);
+    ///     let pt = discretize(plant, 0.05, #{ method: "tustin", prewarp: 2 });
+    #[family = "time domain"]
+    fn discretize(call, sys: Dynamic, dt: Dynamic) -> Dynamic as "System" {
+        discretize_fn(&sys, &dt, Method::Zoh)
+    }
+    fn discretize(call, sys: Dynamic, dt: Dynamic, method: Dynamic) -> Dynamic as "System" {
+        discretize_fn(&sys, &dt, method_of(&method)?)
+    }
+
+    /// the continuous model whose zero-order hold is sysd (matrix logarithm)
+    ///
+    /// Inverts discretize(sys, dt): [A B] is the top of log([Ad Bd; 0 I])/dt. Fails, naming
+    /// the eigenvalue, when Ad has an eigenvalue on the closed negative real axis (0
+    /// included): then no real continuous model has this hold. Poles come back with |Im s|
+    /// < π/dt (faster oscillations are aliased).
+    ///
+    /// example:
+    ///     let back = to_continuous(discretize(plant, 0.05));
+    #[family = "time domain"]
+    fn to_continuous(call, sysd: Dynamic) -> Dynamic as "System" {
+        let sys = to_system(&sysd, call.name, "sys")?;
         discretize::to_continuous(&sys)
             .map(system_value)
-            .map_err(num(f))
-    });
+            .map_err(call.num())
+    }
 
-    engine.register_fn("step_response", |s: Dynamic| step(&s, None));
-    engine.register_fn("step_response", |s: Dynamic, tf: Dynamic| {
-        step(&s, Some(&tf))
-    });
-    engine.register_fn("impulse_response", |ctx: NativeCallContext, s: Dynamic| {
-        impulse(&ctx, &s, None)
-    });
-    engine.register_fn(
-        "impulse_response",
-        |ctx: NativeCallContext, s: Dynamic, tf: Dynamic| impulse(&ctx, &s, Some(&tf)),
-    );
-    engine.register_fn("free_response", |s: Dynamic, x0: Dynamic| {
-        free(&s, &x0, None)
-    });
-    engine.register_fn("free_response", |s: Dynamic, x0: Dynamic, tf: Dynamic| {
-        free(&s, &x0, Some(&tf))
-    });
-    engine.register_fn(
-        "simulate",
-        |ctx: NativeCallContext, s: Dynamic, t: Dynamic, u: Dynamic| {
-            simulate(&ctx, &s, &t, &u, None, None)
-        },
-    );
-    engine.register_fn(
-        "simulate",
-        |ctx: NativeCallContext, s: Dynamic, t: Dynamic, u: Dynamic, x0: Dynamic| {
-            simulate(&ctx, &s, &t, &u, Some(&x0), None)
-        },
-    );
-    engine.register_fn(
-        "simulate",
-        |ctx: NativeCallContext, s: Dynamic, t: Dynamic, u: Dynamic, x0: Dynamic, o: Map| {
-            simulate(&ctx, &s, &t, &u, Some(&x0), Some(&o))
-        },
-    );
-    engine.register_fn("step_metrics", |v: Dynamic| step_metrics(&v, None));
-    engine.register_fn("step_metrics", |v: Dynamic, tf: Dynamic| {
-        step_metrics(&v, Some(&tf))
-    });
+    /// the response to a unit step on each input, from rest
+    ///
+    /// t_final in seconds. Several inputs give an array of Responses, one per input.
+    /// Samples are exact (discretised state transition, no ODE solver). Automatic horizon
+    /// when t_final is omitted: 7 time constants of the slowest stable pole (7/|Re s|), 4
+    /// e-folding times of an unstable one, 3 periods of an undamped oscillation, 10 s when
+    /// only integrators remain; the step aims at 20 samples per fastest time scale 1/|s|,
+    /// with 201 to 10001 samples. A discrete model uses its dt (poles mapped by s =
+    /// ln(z)/dt for the rule).
+    ///
+    /// example:
+    ///     let r = step_response(plant);
+    ///     show(r);
+    ///     plot_response(r)
+    #[family = "time domain"]
+    fn step_response(call, sys: Dynamic) -> Dynamic as "Response" {
+        step(&sys, None)
+    }
+    fn step_response(call, sys: Dynamic, t_final: Dynamic) -> Dynamic as "Response" {
+        step(&sys, Some(&t_final))
+    }
 
-    engine.register_fn(
-        "integrate_ode",
-        |ctx: NativeCallContext, f: Dynamic, x0: Dynamic, tf: Dynamic| {
-            integrate(&ctx, &f, &x0, &tf, None)
-        },
-    );
-    engine.register_fn(
-        "integrate_ode",
-        |ctx: NativeCallContext, f: Dynamic, x0: Dynamic, tf: Dynamic, o: Map| {
-            integrate(&ctx, &f, &x0, &tf, Some(&o))
-        },
-    );
-    engine.register_fn(
-        "linearize_at",
-        |ctx: NativeCallContext, f: Dynamic, g: Dynamic, x0: Dynamic, u0: Dynamic| {
-            linearize_fn(&ctx, &f, &g, &x0, &u0)
-        },
-    );
-    plots::register(engine);
+    /// the response to a unit impulse on each input
+    ///
+    /// Continuous: the free motion from x(0⁺) = B (y = C e^{At} B); the feedthrough's
+    /// D·δ(t) cannot be sampled and is left out (with a warning when D ≠ 0). Discrete: the
+    /// unit pulse u[0] = 1. Horizon rule as step_response.
+    ///
+    /// example:
+    ///     impulse_response(plant, 10)
+    #[family = "time domain"]
+    fn impulse_response(call, sys: Dynamic) -> Dynamic as "Response" {
+        impulse(call.ctx(), &sys, None)
+    }
+    fn impulse_response(call, sys: Dynamic, t_final: Dynamic) -> Dynamic as "Response" {
+        impulse(call.ctx(), &sys, Some(&t_final))
+    }
+
+    /// the motion from initial state x0 with zero input
+    ///
+    /// x0: array of n numbers. t_final in seconds (automatic horizon when omitted).
+    ///
+    /// example:
+    ///     free_response(plant, [1, 0], 20)
+    #[family = "time domain"]
+    fn free_response(call, sys: Dynamic, x0: Dynamic) -> Dynamic as "Response" {
+        free(&sys, &x0, None)
+    }
+    fn free_response(call, sys: Dynamic, x0: Dynamic, t_final: Dynamic) -> Dynamic as "Response" {
+        free(&sys, &x0, Some(&t_final))
+    }
+
+    /// the response to an input sampled at uniform times t
+    ///
+    /// t: uniform, increasing times ≥ 0 in seconds (linear_grid). u: a Matrix with one row
+    /// per sample and one column per input, an array (one input), or a function of t
+    /// returning a number or an array. x0: initial state at t[0] (() for zero). Continuous
+    /// models: hold "linear" (default; u linear between samples, exact for piecewise-linear
+    /// u) or "zoh" (u[k] held until t[k+1]). Discrete models step x[k+1] = A x[k] + B u[k]
+    /// once per sample; t's step must equal dt. states: keep .x (default true unless
+    /// samples × states exceeds 1000000; .x then errors).
+    ///
+    /// example:
+    ///     let t = linear_grid(0, 10, 501);
+    ///     let r = simulate(plant, t, |t| sin(2 * t));
+    ///     r.y
+    #[family = "time domain"]
+    fn simulate(call, sys: Dynamic, t: Dynamic, u: Dynamic) -> Dynamic as "Response" {
+        simulate(call.ctx(), &sys, &t, &u, None, None)
+    }
+    fn simulate(call, sys: Dynamic, t: Dynamic, u: Dynamic, x0: Dynamic) -> Dynamic as "Response" {
+        simulate(call.ctx(), &sys, &t, &u, Some(&x0), None)
+    }
+    fn simulate(
+        call, sys: Dynamic, t: Dynamic, u: Dynamic, x0: Dynamic, options: Map,
+    ) -> Dynamic as "Response" {
+        simulate(call.ctx(), &sys, &t, &u, Some(&x0), Some(&options))
+    }
+
+    /// 10–90 % rise time, 2 % settling time, overshoot (%), peak and final value
+    ///
+    /// Times in seconds, measured from the start; changes relative to the initial value.
+    /// Crossings refined by interpolation, the peak by a parabola. From a model: an
+    /// accurate step response (20001 exact samples) with the final value from dc_gain; the
+    /// model must be stable (an error names the pole otherwise). From a Response: the final
+    /// value is its last sample (run it long enough). Several inputs/outputs give a table
+    /// with input and output indices. Undefined entries (no change, never reaching 90 %,
+    /// still outside the band at the end) are NaN.
+    ///
+    /// example:
+    ///     step_metrics(plant).overshoot
+    #[family = "time domain"]
+    fn step_metrics(call, sys_or_response: Dynamic)
+        -> Dynamic as "#{ rise_time, settling_time, overshoot, peak, peak_time, final_value }"
+    {
+        step_metrics(&sys_or_response, None)
+    }
+    fn step_metrics(call, sys: Dynamic, t_final: Dynamic)
+        -> Dynamic as "#{ rise_time, settling_time, overshoot, peak, peak_time, final_value }"
+    {
+        step_metrics(&sys, Some(&t_final))
+    }
+
+    /// solves x' = f(t, x), x(0) = x0 up to t_final (adaptive, explicit or stiff)
+    ///
+    /// f: a closure |t, x| … or Fn("name") returning an array of n numbers. method: "auto"
+    /// (default: Dormand–Prince 5(4), switching to Radau IIA when stiffness is detected),
+    /// "explicit", "stiff". rtol (default 1e-6), atol (1e-9), max_step in seconds, samples
+    /// (an array of times, or a count of uniform samples). The last row of .x is the state
+    /// at t_final. Errors name the time reached: a failing or non-finite f, a wrong number
+    /// of values, step size underflow.
+    ///
+    /// example:
+    ///     let r = integrate_ode(|t, x| [x[1], -x[0]], [1, 0], 10, #{ samples: 101 });
+    ///     r.x
+    #[family = "time domain"]
+    fn integrate_ode(call, f: Dynamic, x0: Dynamic, t_final: Dynamic) -> Dynamic as "Response" {
+        integrate(call.ctx(), &f, &x0, &t_final, None)
+    }
+    fn integrate_ode(
+        call, f: Dynamic, x0: Dynamic, t_final: Dynamic, options: Map,
+    ) -> Dynamic as "Response" {
+        integrate(call.ctx(), &f, &x0, &t_final, Some(&options))
+    }
+
+    /// the linear model of dx = f(x, u), y = g(x, u) about the point (x0, u0)
+    ///
+    /// f and g: closures |x, u| … returning arrays. A = ∂f/∂x, B = ∂f/∂u, C = ∂g/∂x, D =
+    /// ∂g/∂u by central differences with steps ε^(1/3)·max(|v|, 1) per variable (error
+    /// about 1e-10 relative). The model is in deviations from (x0, u0).
+    ///
+    /// example:
+    ///     let f = |x, u| [x[1], -sin(x[0]) + u[0]];
+    ///     let g = |x, u| [x[0]];
+    ///     linearize_at(f, g, [0, 0], [0])
+    #[family = "time domain"]
+    fn linearize_at(call, f: Dynamic, g: Dynamic, x0: Dynamic, u0: Dynamic) -> Dynamic as "System" {
+        linearize_fn(call.ctx(), &f, &g, &x0, &u0)
+    }
 }
 
 /// JSON of a response: `{t, y, x, u}` (x is null when the states were not kept).

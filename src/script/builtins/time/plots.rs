@@ -9,7 +9,7 @@ use crate::script::builtins::model_plots::legend_names;
 use crate::script::builtins::plot::options;
 use crate::script::convert::{fail, num, to_system, type_name, Rr};
 use crate::script::types::{Figure, Response};
-use rhai::{Array, Dynamic, Engine, Map};
+use rhai::{Array, Dynamic, Map};
 
 fn curve(r: &Response, label: Option<String>) -> ResponseCurve {
     let d = &r.data;
@@ -149,14 +149,39 @@ fn plot_step(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
     Ok(Figure(fig))
 }
 
-/// Registers the time-response plots.
-pub fn register(engine: &mut Engine) {
-    engine.register_fn("plot_response", |v: Dynamic| plot_response(&v, None));
-    engine.register_fn("plot_response", |v: Dynamic, o: Map| {
-        plot_response(&v, Some(&o))
-    });
-    engine.register_fn("plot_step", |v: Dynamic| plot_step(&v, None));
-    engine.register_fn("plot_step", |v: Dynamic, o: Map| plot_step(&v, Some(&o)));
+crate::builtins! {
+    /// each output against time in its own panel; several responses overlaid
+    ///
+    /// Panels share the time axis; output names come from the model's signal names.
+    /// Legends: a response's input name, else "response k". Discrete responses are drawn as
+    /// staircases. options as plot.
+    ///
+    /// example:
+    ///     let pd = discretize(plant, 0.1);
+    ///     plot_response([step_response(plant), step_response(pd)])
+    #[family = "plots"]
+    fn plot_response(call, responses: Dynamic) -> Figure {
+        plot_response(&responses, None)
+    }
+    fn plot_response(call, responses: Dynamic, options: Map) -> Figure {
+        plot_response(&responses, Some(&options))
+    }
+
+    /// step responses of one or more models, one panel per output
+    ///
+    /// A common automatic horizon (the longest of the models'). A single-input model alone
+    /// also shows its final value (dc_gain) as a dashed line. options: as plot (title,
+    /// legend — an array of names, one per model, or false — width, height).
+    ///
+    /// example:
+    ///     plot_step([plant, discretize(plant, 0.2)], #{ legend: ["continuous", "sampled"] })
+    #[family = "plots"]
+    fn plot_step(call, models: Dynamic) -> Figure {
+        plot_step(&models, None)
+    }
+    fn plot_step(call, models: Dynamic, options: Map) -> Figure {
+        plot_step(&models, Some(&options))
+    }
 }
 
 #[cfg(test)]
