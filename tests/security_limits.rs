@@ -393,6 +393,25 @@ fn native_work_stops_at_the_deadline() {
     );
 }
 
+/// One long native call (a 1400×1400 matrix exponential with ±1e12 entries needs dozens of
+/// squarings of seconds each) is stopped at its own cancellation point, with an error that
+/// names the computation and the line, instead of the hard watchdog exit after the grace.
+#[test]
+fn one_long_native_call_stops_at_its_cancellation_point() {
+    let body = "let n = 1400;\nlet a = filled(n, n, 0.0);\nfor k in 0..700 { a.set(2 * k, 2 * k + 1, 1e12); a.set(2 * k + 1, 2 * k, -1e12); }\nlet e = a.exp();\n";
+    let d = folder("expm-deadline", &[("t.sbook", body)]);
+    let (out, t) = run(
+        &d,
+        "t.sbook",
+        &["--timeout", "2", "--max-operations", "1000000000000"],
+    );
+    refused(&out, "expm-deadline", "was stopped");
+    let err = text(&out.stderr);
+    assert!(err.contains("t.sbook:4"), "{err}");
+    let late = t.as_secs_f64() - 2.0;
+    assert!(late < 1.0, "stopped {late:.2} s after its deadline: {err}");
+}
+
 #[test]
 fn parsing_stops_at_the_deadline() {
     let mut body = String::new();

@@ -68,6 +68,12 @@ pub enum NumError {
         /// The cause.
         why: String,
     },
+    /// The run's wall-clock deadline (`--timeout`) passed while a long computation was
+    /// running; it stopped at its next cancellation point (once per sweep or iteration).
+    Cancelled {
+        /// Which computation.
+        what: String,
+    },
     /// A request exceeds a size limit before any memory is allocated.
     TooLarge {
         /// What was requested.
@@ -96,6 +102,16 @@ impl NumError {
             what: what.into(),
             expected: expected.into(),
             found: found.into(),
+        }
+    }
+
+    /// A cancellation point of a long computation: [`NumError::Cancelled`] once the run's
+    /// deadline has passed (`crate::budget::cancelled`, one relaxed atomic load).
+    pub fn deadline(what: &str) -> NumResult<()> {
+        if crate::budget::cancelled() {
+            Err(NumError::Cancelled { what: what.into() })
+        } else {
+            Ok(())
         }
     }
 
@@ -147,6 +163,10 @@ impl fmt::Display for NumError {
             }
             NumError::InvalidArgument { what, why } => write!(f, "{what}: {why}"),
             NumError::NoSolution { what, why } => write!(f, "{what} has no solution: {why}"),
+            NumError::Cancelled { what } => write!(
+                f,
+                "{what} was stopped: the run's deadline (--timeout) passed while it was running"
+            ),
             NumError::TooLarge { what, limit } => {
                 write!(f, "{what} exceeds the size limit of {limit}")
             }

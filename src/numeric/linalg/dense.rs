@@ -530,6 +530,7 @@ pub fn condition(a: &DMatrix<f64>) -> NumResult<f64> {
 /// Reciprocal 2-norm condition σₙ/σ₁ of a finite square matrix (1 for 0×0, 0 for the zero
 /// matrix).
 fn reciprocal_condition(a: &DMatrix<f64>) -> NumResult<f64> {
+    NumError::deadline("condition estimate")?;
     let s = singular_values(a)?;
     match (s.first(), s.last()) {
         (Some(&first), Some(&last)) => Ok(if first == 0.0 { 0.0 } else { last / first }),
@@ -562,6 +563,7 @@ pub fn determinant(a: &DMatrix<f64>) -> NumResult<f64> {
     if n == 0 {
         return Ok(1.0);
     }
+    NumError::deadline("determinant")?;
     Ok(a.clone().lu().determinant())
 }
 
@@ -579,6 +581,9 @@ pub fn inverse(a: &DMatrix<f64>) -> NumResult<DMatrix<f64>> {
         return Ok(DMatrix::zeros(0, 0));
     }
     ensure_nonsingular("A", a)?;
+    // Cancellation points between the phases (the singular values, the LU inverse), each
+    // a few tenths of a second at most for the largest matrices a script can make.
+    NumError::deadline("inverse")?;
     let inv = a.clone().lu().try_inverse().ok_or(NumError::Singular {
         what: "A".into(),
         rcond: 0.0,
@@ -602,6 +607,7 @@ pub fn power(a: &DMatrix<f64>, k: i64) -> NumResult<DMatrix<f64>> {
     let mut e = k.unsigned_abs();
     let mut out = DMatrix::identity(n, n);
     while e > 0 {
+        NumError::deadline("matrix power")?;
         if e & 1 == 1 {
             out = &out * &base;
         }
@@ -640,6 +646,7 @@ pub fn solve(a: &DMatrix<f64>, b: &DMatrix<f64>) -> NumResult<DMatrix<f64>> {
         return Ok(DMatrix::zeros(n, b.ncols()));
     }
     ensure_nonsingular("A", a)?;
+    NumError::deadline("solve(A, B)")?;
     let x = a.clone().lu().solve(b).ok_or(NumError::Singular {
         what: "A".into(),
         rcond: 0.0,

@@ -511,6 +511,7 @@ pub fn expm_with(a: &DMatrix<f64>, params: &ExpmParams) -> NumResult<DMatrix<f64
         exact_triangular_band(&mut x, &work, squarings);
     }
     for j in 1..=squarings {
+        NumError::deadline("matrix exponential")?;
         x = &x * &x;
         if !kernels::all_finite(x.as_slice()) {
             return Err(overflow());

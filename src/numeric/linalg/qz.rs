@@ -538,6 +538,7 @@ impl Work {
             }
             sweeps += 1;
             since_deflation += 1;
+            NumError::deadline("QZ iteration")?;
             if sweeps > max_sweeps {
                 return Err(NumError::NoConvergence {
                     what: "QZ iteration".to_string(),

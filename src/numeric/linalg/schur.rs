@@ -93,11 +93,19 @@ impl RealSchur {
         let (work, scale) = scaled_into_safe_range(a);
         let (mut q, mut t) = nalgebra::linalg::Hessenberg::new(work).unpack();
         let itmax = params.iterations_per_row.max(1).saturating_mul(n.max(10));
-        if let Err(row) = francis_qr(&mut t, &mut q, itmax, true) {
-            return Err(NumError::NoConvergence {
-                what: format!("real Schur decomposition (QR iteration at row {row})"),
-                iterations: itmax,
-            });
+        match francis_qr(&mut t, &mut q, itmax, true) {
+            Ok(()) => {}
+            Err(None) => {
+                return Err(NumError::Cancelled {
+                    what: "real Schur decomposition".into(),
+                })
+            }
+            Err(Some(row)) => {
+                return Err(NumError::NoConvergence {
+                    what: format!("real Schur decomposition (QR iteration at row {row})"),
+                    iterations: itmax,
+                })
+            }
         }
         clean_below_quasi_diagonal(&mut t);
         if let Err((i, j)) = quasi_triangular(&t) {
@@ -143,11 +151,19 @@ impl RealSchur {
         let itmax = SchurParams::default()
             .iterations_per_row
             .saturating_mul(n.max(10));
-        if let Err(row) = francis_qr(&mut t, &mut none, itmax, false) {
-            return Err(NumError::NoConvergence {
-                what: format!("real Schur decomposition (QR iteration at row {row})"),
-                iterations: itmax,
-            });
+        match francis_qr(&mut t, &mut none, itmax, false) {
+            Ok(()) => {}
+            Err(None) => {
+                return Err(NumError::Cancelled {
+                    what: "real Schur decomposition".into(),
+                })
+            }
+            Err(Some(row)) => {
+                return Err(NumError::NoConvergence {
+                    what: format!("real Schur decomposition (QR iteration at row {row})"),
+                    iterations: itmax,
+                })
+            }
         }
         let mut out = Vec::with_capacity(n);
         let mut k = 0;
@@ -295,13 +311,14 @@ impl RealSchur {
 /// Francis double-shift QR iteration on an upper Hessenberg `h`, accumulating the
 /// transformations into `z` (the method of LAPACK's `dlahqr` with `wantt = wantz = true`).
 /// On success `h` is quasi-triangular with standardised 2×2 blocks; `Err` carries the row
-/// at which `itmax` sweeps did not deflate.
+/// at which `itmax` sweeps did not deflate, or `None` when the run's deadline passed (a
+/// cancellation point once per QR sweep).
 fn francis_qr(
     h: &mut DMatrix<f64>,
     z: &mut DMatrix<f64>,
     itmax: usize,
     full: bool,
-) -> Result<(), usize> {
+) -> Result<(), Option<usize>> {
     const DAT1: f64 = 0.75;
     const DAT2: f64 = -0.4375;
     const KEXSH: usize = 10;
@@ -325,6 +342,9 @@ fn francis_qr(
         let mut l = 0;
         let mut deflated = false;
         for _its in 0..=itmax {
+            if crate::budget::cancelled() {
+                return Err(None);
+            }
             // Look for a single small subdiagonal element (Ahues & Tisseur criterion).
             let mut k = i;
             while k > l {
@@ -462,7 +482,7 @@ fn francis_qr(
             }
         }
         if !deflated {
-            return Err(i);
+            return Err(Some(i));
         }
         if full && l + 1 == i {
             // A 2×2 block split off: standardise it.
