@@ -643,3 +643,108 @@ fn near_miss_pairs_stay_not_equivalent_under_ill_conditioned_transforms() {
     }
     eprintln!("{judged} verdicts on 1e-6 changes were flagged as judgement calls");
 }
+
+/// Two inertias joined by a spring and damper, driven by a torque, measured by the second
+/// speed (invented numbers): the absolute angle is a rigid-body mode at exactly s = 0,
+/// which the Schur form computes only to rounding level (around 1e-11 here).
+fn two_inertias() -> StateSpace {
+    let (k, c, j1, j2, b2) = (3.8e4, 40.0, 1.2, 4.5, 1.5);
+    siso(
+        &[
+            0.0,
+            1.0,
+            0.0,
+            0.0, //
+            -k / j1,
+            -c / j1,
+            k / j1,
+            c / j1, //
+            0.0,
+            0.0,
+            0.0,
+            1.0, //
+            k / j2,
+            c / j2,
+            -k / j2,
+            -(c + b2) / j2,
+        ],
+        &[0.0, 1.0 / j1, 0.0, 0.0],
+        &[0.0, 0.0, 0.0, 1.0],
+    )
+}
+
+/// A rigid-body pole is reported at the origin (integrator: time constant inf, not a
+/// growing or decaying mode of −1e11 s) at every state scaling, with its computed value
+/// and error bound kept; the other modes are unchanged. A genuinely slow pole beside a
+/// fast one and a lightly damped pair are not moved (their distance from the boundary is
+/// many times their rounding error).
+#[test]
+fn issue13_rigid_body_pole_is_at_the_origin_at_every_scale() {
+    use statebook::numeric::lti::properties::{modes, Boundary};
+    let sys = two_inertias();
+    let base = modes(&sys).expect("modes");
+    for s in scalings(4).into_iter().chain([vec![1.0; 4]]) {
+        let m = modes(&scaled(&sys, &s)).expect("modes");
+        assert_eq!(m.len(), 3, "{s:?}: {m:?}");
+        let origin: Vec<_> = m.iter().filter(|x| x.pole.norm() == 0.0).collect();
+        assert_eq!(origin.len(), 1, "{s:?}: {m:?}");
+        let o = origin[0];
+        assert_eq!(o.time_constant, f64::INFINITY, "{s:?}");
+        assert_eq!(o.natural_frequency, 0.0, "{s:?}");
+        let r = o.rounding.expect("the computed value is kept");
+        assert_eq!(r.boundary, Boundary::Origin);
+        assert!(r.computed.norm() <= r.error && r.error < 1e-6, "{r:?}");
+        for (x, y) in m.iter().zip(&base) {
+            assert!(
+                (x.pole - y.pole).norm() <= 1e-8 * y.pole.norm().max(1e-300),
+                "{s:?}"
+            );
+            assert!(rel(x.damping, y.damping) <= 1e-8, "{s:?}: {x:?} vs {y:?}");
+        }
+    }
+    // Slow real pole (time constant 1e7 s) beside a fast lightly damped pair (ζ = 1e-6 at
+    // 1e3 rad/s): nothing is moved, the damping is kept to 1e-8 relative.
+    let (wn, zeta) = (1e3, 1e-6);
+    let slow = siso(
+        &[
+            -1e-7,
+            0.0,
+            0.0, //
+            0.0,
+            0.0,
+            1.0, //
+            0.0,
+            -wn * wn,
+            -2.0 * zeta * wn,
+        ],
+        &[1.0, 0.0, 1.0],
+        &[1.0, 1.0, 0.0],
+    );
+    for s in scalings(3) {
+        let m = modes(&scaled(&slow, &s)).expect("modes");
+        assert!(m.iter().all(|x| x.rounding.is_none()), "{s:?}: {m:?}");
+        let pair = m.iter().find(|x| x.pole.im > 0.0).expect("the pair");
+        assert!(rel(pair.damping, zeta) <= 1e-8, "{s:?}: {pair:?}");
+        let real = m.iter().find(|x| x.pole.im == 0.0).expect("the slow pole");
+        assert!(rel(real.time_constant, 1e7) <= 1e-8, "{s:?}: {real:?}");
+    }
+}
+
+/// Discrete: an integrator computed near z = 1 is listed at z = 1 (time constant inf),
+/// at every state scaling.
+#[test]
+fn discrete_integrator_is_at_z_one_at_every_scale() {
+    use statebook::numeric::lti::properties::modes;
+    use statebook::numeric::time::discretize::{discretize, Method};
+    let sys = two_inertias();
+    let d = discretize(&sys, 1e-3, Method::Zoh).expect("discretize");
+    for s in scalings(4) {
+        let m = modes(&scaled(&d, &s)).expect("modes");
+        let one: Vec<_> = m
+            .iter()
+            .filter(|x| x.pole == Complex::new(1.0, 0.0))
+            .collect();
+        assert_eq!(one.len(), 1, "{s:?}: {m:?}");
+        assert_eq!(one[0].time_constant, f64::INFINITY);
+    }
+}

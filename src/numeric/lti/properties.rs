@@ -1,7 +1,7 @@
 //! Poles, stability, modes and steady-state gain of a model.
 
 use super::system::StateSpace;
-use crate::numeric::linalg::eigen::eigenvalues;
+use crate::numeric::linalg::eigen::{eigenvalues, eigenvalues_with_bounds};
 use crate::numeric::{NumError, NumResult};
 use nalgebra::{Complex, DMatrix};
 
@@ -28,7 +28,8 @@ pub fn is_stable(sys: &StateSpace) -> NumResult<bool> {
 /// positive imaginary part).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Mode {
-    /// The pole (in `s`, or in `z` for a discrete model).
+    /// The pole (in `s`, or in `z` for a discrete model); where the computed pole lay
+    /// within its rounding error of a boundary, the point on the boundary (see `rounding`).
     pub pole: Complex<f64>,
     /// Damping ratio ζ = −Re(s)/|s| of the equivalent continuous pole `s` (for a discrete
     /// pole, `s = ln(z)/dt`); 1 for a real stable pole, −1 for a real unstable one, and 1
@@ -39,16 +40,92 @@ pub struct Mode {
     /// Time constant τ = −1/Re(s) in seconds: positive for decaying modes, negative for
     /// growing ones (the e-folding time of growth), infinite on the stability boundary.
     pub time_constant: f64,
+    /// Set when the computed pole was indistinguishable from a boundary point.
+    pub rounding: Option<Rounding>,
+}
+
+/// A computed pole that lay within its own rounding error of the stability boundary, and
+/// was therefore reported on it.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Rounding {
+    /// The pole as computed.
+    pub computed: Complex<f64>,
+    /// Its rounding-error bound ([`eigenvalues_with_bounds`]).
+    pub error: f64,
+    /// Where it was put.
+    pub boundary: Boundary,
+}
+
+/// The boundary points a pole can be indistinguishable from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Boundary {
+    /// s = 0 (continuous) or z = 0 (discrete).
+    Origin,
+    /// Re s = 0: an undamped oscillation.
+    ImaginaryAxis,
+    /// z = 1: a discrete integrator.
+    One,
+    /// |z| = 1: an undamped discrete oscillation.
+    UnitCircle,
+}
+
+impl Boundary {
+    /// The words a message uses for it.
+    pub fn describe(self) -> &'static str {
+        match self {
+            Boundary::Origin => "the origin",
+            Boundary::ImaginaryAxis => "the imaginary axis (undamped)",
+            Boundary::One => "z = 1 (an integrator)",
+            Boundary::UnitCircle => "the unit circle (undamped)",
+        }
+    }
+}
+
+/// The boundary point a computed pole is indistinguishable from, if any: within `error`
+/// of the origin, of the imaginary axis (continuous), of z = 1 or of the unit circle
+/// (discrete).
+fn snap(z: Complex<f64>, error: f64, discrete: bool) -> Option<(Complex<f64>, Boundary)> {
+    let zero = Complex::new(0.0, 0.0);
+    if z.norm() <= error {
+        return Some((zero, Boundary::Origin));
+    }
+    if !discrete {
+        return (z.im != 0.0 && z.re.abs() <= error)
+            .then(|| (Complex::new(0.0, z.im), Boundary::ImaginaryAxis));
+    }
+    let one = Complex::new(1.0, 0.0);
+    if (z - one).norm() <= error {
+        return Some((one, Boundary::One));
+    }
+    (z.im != 0.0 && (z.norm() - 1.0).abs() <= error).then(|| (z / z.norm(), Boundary::UnitCircle))
 }
 
 /// The modes of a model in pole order, each complex pair once.
+///
+/// A pole that lies within its own rounding error (its condition number times the
+/// backward error of the balanced Schur form, [`eigenvalues_with_bounds`]) of the origin,
+/// the imaginary axis, z = 1 or the unit circle is reported on that boundary, with the
+/// computed value kept in [`Mode::rounding`]: a rigid-body mode computed as `+8e-12` is an
+/// integrator, not a mode growing with a time constant of −1e11 s. The test compares each
+/// pole with its own error, so it does not depend on the units of the states.
 pub fn modes(sys: &StateSpace) -> NumResult<Vec<Mode>> {
-    let p = poles(sys)?;
+    let p = eigenvalues_with_bounds(&sys.a)?;
     let mut out = Vec::new();
-    for z in p {
-        if z.im < 0.0 {
+    for b in p {
+        if b.value.im < 0.0 {
             continue;
         }
+        let (z, rounding) = match snap(b.value, b.error, sys.is_discrete()) {
+            Some((z, boundary)) => (
+                z,
+                Some(Rounding {
+                    computed: b.value,
+                    error: b.error,
+                    boundary,
+                }),
+            ),
+            None => (b.value, None),
+        };
         let s = if sys.is_discrete() {
             if z.norm() == 0.0 {
                 // A pole at z = 0 is infinitely fast (deadbeat): s = −∞.
@@ -57,12 +134,18 @@ pub fn modes(sys: &StateSpace) -> NumResult<Vec<Mode>> {
                     damping: 1.0,
                     natural_frequency: f64::INFINITY,
                     time_constant: 0.0,
+                    rounding,
                 });
                 continue;
             }
             z.ln() / sys.dt
         } else {
             z
+        };
+        // On the boundary exactly (ln of a unit-modulus z may keep a rounding-level real part).
+        let s = match rounding.map(|r| r.boundary) {
+            Some(Boundary::ImaginaryAxis | Boundary::UnitCircle) => Complex::new(0.0, s.im),
+            _ => s,
         };
         let wn = s.norm();
         let damping = if wn == 0.0 { 1.0 } else { -s.re / wn };
@@ -76,6 +159,7 @@ pub fn modes(sys: &StateSpace) -> NumResult<Vec<Mode>> {
             damping,
             natural_frequency: wn,
             time_constant,
+            rounding,
         });
     }
     Ok(out)

@@ -329,7 +329,9 @@ crate::builtins! {
     ///
     /// A complex pair is listed once (its member with positive imaginary part). Discrete
     /// poles are mapped by s = ln(z)/dt. time_constant = −1/Re(s): negative for a growing
-    /// mode, inf on the stability boundary.
+    /// mode, inf on the stability boundary. A pole that lies within its own rounding error
+    /// of the origin or the imaginary axis (z = 0, z = 1 or the unit circle when discrete)
+    /// is listed there, with a warning giving the computed value and its error bound.
     ///
     /// example:
     ///     modes(plant)
@@ -338,6 +340,15 @@ crate::builtins! {
         -> Array as "[#{ pole, damping, natural_frequency, time_constant }]"
     {
         let m = properties::modes(&sys).map_err(call.num())?;
+        for r in m.iter().filter_map(|x| x.rounding) {
+            call.warn(format_args!(
+                "the pole computed as {} lies within its rounding error (±{:.1e}) of {}, \
+                 and is listed there",
+                crate::display::complex(r.computed.re, r.computed.im, crate::script::state::style(call.ctx())),
+                r.error,
+                r.boundary.describe()
+            ));
+        }
         Ok(m.iter().map(|x| Dynamic::from_map(mode_map(x))).collect())
     }
 
