@@ -50,6 +50,9 @@ pub struct ZeroPencil {
     /// Normal rank of the transfer matrix G(s) = C(sI − A)⁻¹B + D (the normal rank of
     /// S(λ) is n plus this), as decided by the rank tolerance.
     pub normal_rank: usize,
+    /// The closest rank decision, when rounding propagated from earlier steps could have
+    /// tipped it: zeros may then be missing or spurious.
+    pub ambiguity: Option<Ambiguity>,
 }
 
 /// The transmission zeros of (A, B, C, D), sorted by [`crate::numeric::order`] (ascending
@@ -96,6 +99,21 @@ pub fn transmission_zeros_with(
 ) -> NumResult<Vec<Complex<f64>>> {
     let pencil = zero_pencil(a, b, c, d, params)?;
     qz::finite_generalized_eigenvalues(&pencil.a, &pencil.b, params.infinite_tolerance)
+}
+
+/// [`transmission_zeros`] with the closest rank decision of the reduction when rounding
+/// propagated from earlier steps could have tipped it (zeros may then be missing or
+/// spurious: callers warn with the figures).
+pub fn transmission_zeros_checked(
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    c: &DMatrix<f64>,
+    d: &DMatrix<f64>,
+) -> NumResult<(Vec<Complex<f64>>, Option<Ambiguity>)> {
+    let params = ZerosParams::default();
+    let pencil = zero_pencil(a, b, c, d, &params)?;
+    let z = qz::finite_generalized_eigenvalues(&pencil.a, &pencil.b, params.infinite_tolerance)?;
+    Ok((z, pencil.ambiguity))
 }
 
 /// Extracts from S(λ) = [A − λI, B; C, D] a regular pencil `A_f − λB_f` with the same finite
@@ -150,6 +168,11 @@ pub fn zero_pencil(
     let thr = rel * norm;
 
     // (1) D of full row rank.
+    let mut noise = Noise {
+        thr,
+        carried: 0.0,
+        worst: None,
+    };
     let first = reduce(
         Model {
             a: a.clone(),
@@ -157,7 +180,7 @@ pub fn zero_pencil(
             c: c.clone(),
             d: d.clone(),
         },
-        thr,
+        &mut noise,
     )?;
     let normal_rank = first.d.nrows();
     // (2) The dual model: D square and invertible.
@@ -168,7 +191,7 @@ pub fn zero_pencil(
             c: first.b.transpose(),
             d: first.d.transpose(),
         },
-        thr,
+        &mut noise,
     )?;
     let (af, bf, cf, df) = (
         dual.a.transpose(),
@@ -191,7 +214,7 @@ pub fn zero_pencil(
     let mut cd = DMatrix::zeros(pf, nf + mf);
     cd.view_mut((0, 0), (pf, nf)).copy_from(&cf);
     cd.view_mut((0, nf), (pf, mf)).copy_from(&df);
-    let (v, _) = row_compress(&cd.transpose(), thr)?;
+    let (v, _, _) = row_compress(&cd.transpose(), thr)?;
     let w = v.transpose();
     let mut ab = DMatrix::zeros(nf, nf + mf);
     ab.view_mut((0, 0), (nf, nf)).copy_from(&af);
@@ -201,6 +224,7 @@ pub fn zero_pencil(
         a: &ab * w1,
         b: w1.rows(0, nf).into_owned(),
         normal_rank,
+        ambiguity: noise.worst,
     })
 }
 
@@ -212,15 +236,70 @@ struct Model {
     d: DMatrix<f64>,
 }
 
+/// A rank decision of the reduction that rounding could have tipped.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Ambiguity {
+    /// The singular value that was counted as rank.
+    pub singular_value: f64,
+    /// The rounding error it may carry, propagated from earlier steps.
+    pub noise: f64,
+    /// The rank threshold it was compared with.
+    pub threshold: f64,
+}
+
+/// Rank threshold and propagated rounding of one reduction ([`reduce`]).
+#[derive(Debug, Clone, Copy)]
+struct Noise {
+    /// The fixed threshold every decision uses.
+    thr: f64,
+    /// Rounding error the current data may carry beyond `thr/10`.
+    carried: f64,
+    /// The closest call so far (largest noise/singular-value ratio).
+    worst: Option<Ambiguity>,
+}
+
+impl Noise {
+    /// Records a decision on singular values `sv` with extra noise `extra`: a value above
+    /// the threshold but within the noise could be rounding counted as rank.
+    fn decide(&mut self, sv: &[f64], extra: f64) {
+        let noise = self.carried + extra;
+        for &s in sv {
+            if s > self.thr && s <= self.thr + noise {
+                let worse = self
+                    .worst
+                    .is_none_or(|w| noise / s > w.noise / w.singular_value);
+                if worse {
+                    self.worst = Some(Ambiguity {
+                        singular_value: s,
+                        noise,
+                        threshold: self.thr,
+                    });
+                }
+            }
+        }
+    }
+}
+
 /// Step (1) of [`zero_pencil`]: a model with the same finite zeros and D of full row rank.
-fn reduce(mut s: Model, thr: f64) -> NumResult<Model> {
+///
+/// Rank decisions use one fixed threshold. Downstream of a small kept singular value they
+/// see amplified rounding, which `noise` tracks so that a decision rounding could have
+/// tipped is reported ([`ZeroPencil::ambiguity`]) rather than trusted silently: the state
+/// split `W` of a step is computed from Ĉ, and a perturbation `δ` of Ĉ turns it by up to
+/// `δ/σ_min(Ĉ)` (Wedin 1972, "Perturbation bounds in connection with singular value
+/// decomposition", BIT 12, the sin θ theorem), so the next step's `C` and `D` (rows of
+/// `Wᵀ[A B]`) carry errors up to `δ·‖[A B]‖/σ_min(Ĉ)`; likewise the rows of `C` beside the
+/// null rows of `D` carry `δ·‖C‖/gap(D)`.
+fn reduce(mut s: Model, noise: &mut Noise) -> NumResult<Model> {
+    let thr = noise.thr;
     loop {
         let n = s.a.nrows();
         let p = s.c.nrows();
         if p == 0 {
             return Ok(s);
         }
-        let (u, rho) = row_compress(&s.d, thr)?;
+        let (u, rho, dsv) = row_compress(&s.d, thr)?;
+        noise.decide(&dsv, 0.0);
         let c = &u * &s.c;
         let d = &u * &s.d;
         let k = p - rho;
@@ -235,7 +314,15 @@ fn reduce(mut s: Model, thr: f64) -> NumResult<Model> {
         let c1 = c.rows(0, k).into_owned();
         let c2 = c.rows(k, rho).into_owned();
         let d2 = d.rows(k, rho).into_owned();
-        let (v, mu) = row_compress(&c1, thr)?;
+        // The null rows of D turn by δ/gap, which C₁ (their combination of C) inherits.
+        let c1_extra = if rho > 0 {
+            let gap = dsv[rho - 1] - dsv.get(rho).copied().unwrap_or(0.0);
+            propagated(thr + noise.carried, gap, frobenius(&s.c))
+        } else {
+            0.0
+        };
+        let (v, mu, csv) = row_compress(&c1, thr)?;
+        noise.decide(&csv, c1_extra);
         if mu == 0 {
             // The k rows [C₁ 0] are negligible: drop them; D̃ has full row rank.
             return Ok(Model {
@@ -248,8 +335,10 @@ fn reduce(mut s: Model, thr: f64) -> NumResult<Model> {
         let c_hat = (&v * &c1).rows(k - mu, mu).into_owned();
         // W with Ĉ·W = [0, Ĉ₂]: W = Vᵀ for V·Ĉᵀ = [0; Ĉ₂ᵀ]. Ĉ has full row rank μ, so the
         // n − μ zero rows of V·Ĉᵀ are exactly the padding's zero singular values.
-        let (wt, _) = row_compress(&c_hat.transpose(), thr)?;
+        let (wt, _, _) = row_compress(&c_hat.transpose(), thr)?;
         let w = wt.transpose();
+        let ab_norm = frobenius(&s.a).hypot(frobenius(&s.b));
+        noise.carried += c1_extra + propagated(thr + noise.carried, csv[mu - 1], ab_norm);
         let a = &wt * &s.a * &w;
         let b = &wt * &s.b;
         let c2 = c2 * &w;
@@ -274,13 +363,23 @@ fn reduce(mut s: Model, thr: f64) -> NumResult<Model> {
     }
 }
 
+/// The error a subspace computed across a singular-value gap passes on to `norm`-sized
+/// data: `(thr/10)/gap · norm` (the sin θ bound with the rounding level `thr/10`), capped at
+/// `norm` (a turn of at most 90°).
+fn propagated(thr: f64, gap: f64, norm: f64) -> f64 {
+    if gap <= 0.0 {
+        return norm;
+    }
+    (0.1 * thr / gap).min(1.0) * norm
+}
+
 /// Orthogonal U (r×r) with U·M = [0; M̃], M̃ of full row rank, and that rank: the number of
 /// singular values of M above `thr`. Rows of U are M's left singular vectors, smallest
 /// singular value first.
-fn row_compress(m: &DMatrix<f64>, thr: f64) -> NumResult<(DMatrix<f64>, usize)> {
+fn row_compress(m: &DMatrix<f64>, thr: f64) -> NumResult<(DMatrix<f64>, usize, Vec<f64>)> {
     let (r, c) = m.shape();
     if r == 0 || c == 0 {
-        return Ok((DMatrix::identity(r, r), 0));
+        return Ok((DMatrix::identity(r, r), 0, Vec::new()));
     }
     // Pad a tall matrix with zero columns so that the thin SVD yields a full r×r U.
     let work = if c < r {
@@ -297,7 +396,11 @@ fn row_compress(m: &DMatrix<f64>, thr: f64) -> NumResult<(DMatrix<f64>, usize)> 
         iterations: 0,
     })?;
     let rank = svd.singular_values.iter().filter(|&&s| s > thr).count();
-    Ok((DMatrix::from_fn(r, r, |i, j| u[(j, r - 1 - i)]), rank))
+    Ok((
+        DMatrix::from_fn(r, r, |i, j| u[(j, r - 1 - i)]),
+        rank,
+        svd.singular_values.as_slice().to_vec(),
+    ))
 }
 
 fn check_model(
@@ -778,25 +881,31 @@ mod tests {
         planted_sweep(false);
     }
 
-    /// Known open (issue 13, item 5): with N₀ close to a rank drop (pivot 2⁻⁴…2⁻²⁰) the
-    /// reduction loses every zero of 80 of these 1200 models; a larger rank tolerance only
-    /// moves the boundary (14 at 1000·(n + max(m, p))·ε). Run with `--ignored`.
+    /// Issue 13, item 5: with N₀ close to a rank drop (pivot 2⁻⁴…2⁻²⁰) the reduction loses
+    /// zeros of about 45 of these 1200 models, because a small kept singular value
+    /// amplifies rounding in later rank decisions (a larger fixed tolerance only moves the
+    /// boundary). Every such case must carry the ambiguity that `zeros` turns into a
+    /// warning with the figures; none may be silently wrong.
     #[test]
-    #[ignore = "known open: zeros lost near a rank drop elsewhere"]
-    fn planted_zeros_near_a_rank_drop_elsewhere() {
+    fn planted_zeros_near_a_rank_drop_elsewhere_are_found_or_flagged() {
         planted_sweep(true);
     }
 
     fn planted_sweep(near_drop: bool) {
         let (mut missed, mut invented, mut failed) = (0, 0, 0);
+        let (mut flagged_wrong, mut silent_wrong, mut false_alarms) = (0, 0, 0);
         let mut rng = Rng::new(2026);
         let total = 1200;
         for k in 0..total {
             let (s, want) = planted(&mut rng, k % 2 == 1, near_drop);
-            match transmission_zeros(&s.a, &s.b, &s.c, &s.d) {
+            let flagged = zero_pencil(&s.a, &s.b, &s.c, &s.d, &ZerosParams::default())
+                .map(|p| p.ambiguity.is_some())
+                .unwrap_or(false);
+            let wrong = match transmission_zeros(&s.a, &s.b, &s.c, &s.d) {
                 Err(e) => {
                     failed += 1;
                     eprintln!("case {k}: {e}");
+                    true
                 }
                 Ok(got) => {
                     let found = |w: &Complex<f64>| {
@@ -809,15 +918,36 @@ mod tests {
                     };
                     let miss = want.iter().filter(|w| !found(w)).count();
                     let extra = got.iter().filter(|g| !planted_here(g)).count();
-                    if miss + extra > 0 {
-                        eprintln!("case {k}: want {want:?}, got {got:?}");
-                    }
                     missed += miss;
                     invented += extra;
+                    miss + extra > 0
                 }
+            };
+            match (wrong, flagged) {
+                (true, true) => flagged_wrong += 1,
+                (true, false) => {
+                    silent_wrong += 1;
+                    eprintln!("case {k}: wrong without a warning");
+                }
+                (false, true) => false_alarms += 1,
+                (false, false) => {}
             }
         }
-        assert_eq!((missed, invented, failed), (0, 0, 0), "of {total} models");
+        eprintln!(
+            "near_drop {near_drop}: missed {missed}, invented {invented}, failed {failed}; \
+             wrong and flagged {flagged_wrong}, wrong and silent {silent_wrong}, \
+             false alarms {false_alarms} of {total}"
+        );
+        // Never a wrong answer without the warning; without a near rank drop, no wrong
+        // answer at all and few false alarms.
+        assert_eq!(silent_wrong, 0, "of {total} models");
+        if !near_drop {
+            assert_eq!((missed, invented, failed), (0, 0, 0), "of {total} models");
+            assert!(
+                false_alarms <= total / 40,
+                "{false_alarms} false alarms of {total}"
+            );
+        }
     }
 
     #[test]

@@ -290,15 +290,26 @@ crate::builtins! {
     /// Finite generalized eigenvalues of the system pencil [[A, B], [C, D]] −
     /// λ[[I, 0], [0, 0]] after the reduction of Emami-Naeini & Van Dooren 1982, computed by
     /// the QZ algorithm. For a non-minimal model the uncontrollable or unobservable modes
-    /// appear as (decoupling) zeros.
+    /// appear as (decoupling) zeros. When a rank decision of the reduction lies within the
+    /// rounding that earlier steps propagate (a model close to a rank drop), a warning
+    /// gives the figures: zeros may then be missing or spurious.
     ///
     /// example:
     ///     zeros(transfer_function([1, 2], [1, 3, 5]))   // [-2+0j]
     #[family = "models"]
     fn zeros(call, sys: Model) -> Array as "[Complex]" {
-        zeros::transmission_zeros(&sys.a, &sys.b, &sys.c, &sys.d)
-            .map(|v| complex_array(&v))
-            .map_err(call.num())
+        let (z, ambiguity) = zeros::transmission_zeros_checked(&sys.a, &sys.b, &sys.c, &sys.d)
+            .map_err(call.num())?;
+        if let Some(a) = ambiguity {
+            call.warn(format_args!(
+                "a rank decision of the zero reduction is within rounding: a singular value \
+                 of {:.2e} was kept against a threshold of {:.2e}, but earlier steps may have \
+                 put up to {:.2e} of rounding into it; zeros may be missing or spurious (the \
+                 model is close to a rank drop: check with a rescaled or exact copy)",
+                a.singular_value, a.threshold, a.noise
+            ));
+        }
+        Ok(complex_array(&z))
     }
 
     /// steady-state gain D − CA⁻¹B (discrete: D + C(I − A)⁻¹B)
