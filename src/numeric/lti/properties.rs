@@ -116,7 +116,8 @@ pub fn modes(sys: &StateSpace) -> NumResult<Vec<Mode>> {
             continue;
         }
         let (z, rounding) = match snap(b.value, b.error, sys.is_discrete()) {
-            Some((z, boundary)) => (
+            // A pole computed exactly on the boundary needs no note.
+            Some((z, boundary)) if z != b.value => (
                 z,
                 Some(Rounding {
                     computed: b.value,
@@ -124,7 +125,7 @@ pub fn modes(sys: &StateSpace) -> NumResult<Vec<Mode>> {
                     boundary,
                 }),
             ),
-            None => (b.value, None),
+            _ => (b.value, None),
         };
         let s = if sys.is_discrete() {
             if z.norm() == 0.0 {
