@@ -35,6 +35,7 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     output::BUILTINS,
     time::BUILTINS,
     time::PLOT_BUILTINS,
+    sweep::BUILTINS,
 ];
 
 /// Help tables of the binding files not yet written as declarations.
