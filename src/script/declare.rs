@@ -320,6 +320,16 @@ impl Param for FnPtr {
     }
 }
 
+/// A value of one of the script's own types ([`super::types::KINDS`]), e.g. a `Figure`.
+impl<T: super::types::ValueType> Param for T {
+    const KIND: &'static str = T::NAME;
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        let found = convert::type_name(&v);
+        v.try_cast::<T>()
+            .ok_or_else(|| call.fail(format_args!("{arg} must be a {}, found {found}", T::NAME)))
+    }
+}
+
 /// The user-facing name of an engine type name (`i64` → `int`).
 fn convert_name(t: &str) -> &str {
     match t {

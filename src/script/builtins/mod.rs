@@ -36,6 +36,7 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     time::BUILTINS,
     time::PLOT_BUILTINS,
     sweep::BUILTINS,
+    plot::BUILTINS,
 ];
 
 /// Help tables of the binding files not yet written as declarations.
