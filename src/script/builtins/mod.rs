@@ -37,6 +37,7 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     time::PLOT_BUILTINS,
     sweep::BUILTINS,
     plot::BUILTINS,
+    model_plots::BUILTINS,
 ];
 
 /// Help tables of the binding files not yet written as declarations.
@@ -50,7 +51,6 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     plot::DOCS,
     time::DOCS,
     design::DOCS,
-    model_plots::DOCS,
     sweep::DOCS,
 ];
 
