@@ -38,6 +38,7 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     sweep::BUILTINS,
     plot::BUILTINS,
     model_plots::BUILTINS,
+    arith::BUILTINS,
 ];
 
 /// Help tables of the binding files not yet written as declarations.
