@@ -1,5 +1,8 @@
-//! One binding file per domain, mirroring `numeric/`. Each has `register` and `DOCS`;
-//! `script::engine` registers them all in one place.
+//! One binding file per domain, mirroring `numeric/`. Each declares its built-ins in
+//! `BUILTINS` (see `script::declare`); what a declaration cannot describe (properties,
+//! methods that change a value in place, operators, value types) is registered by hand in
+//! its `register` and documented in its `DOCS`. `script::engine` registers them all in one
+//! place.
 
 pub mod arith;
 pub mod complex;
@@ -41,7 +44,7 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     arith::BUILTINS,
 ];
 
-/// Help tables of the binding files not yet written as declarations.
+/// The hand-written pages: properties, in-place methods, operators and value types.
 pub const DOC_TABLES: &[&[Doc]] = &[
     crate::script::sizes::DOCS,
     arith::DOCS,
