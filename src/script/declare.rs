@@ -271,6 +271,35 @@ impl Param for StateSpace {
     }
 }
 
+/// One model or several: a System or a TransferFunction, or a non-empty array of them
+/// (figures that overlay models).
+pub struct Models(pub Vec<StateSpace>);
+impl Param for Models {
+    const KIND: &'static str = "model | [model]";
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        if let Some(a) = v.read_lock::<Array>() {
+            if a.is_empty() {
+                return Err(call.fail(format_args!(
+                    "{arg} is an empty array, expected at least one model"
+                )));
+            }
+            return a
+                .iter()
+                .enumerate()
+                .map(|(k, m)| convert::to_system(m, call.name, &format!("{arg}[{k}]")))
+                .collect::<Rr<Vec<_>>>()
+                .map(Models);
+        }
+        if !(v.is::<super::types::System>() || v.is::<super::types::TransferFunction>()) {
+            return Err(call.fail(format_args!(
+                "{arg} must be a System, a TransferFunction or an array of them, found {}",
+                convert::type_name(&v)
+            )));
+        }
+        convert::to_system(&v, call.name, arg).map(|m| Models(vec![m]))
+    }
+}
+
 /// Text.
 impl Param for String {
     const KIND: &'static str = "string";
@@ -317,6 +346,16 @@ impl Param for FnPtr {
                 convert::type_name(&v)
             ))
         })
+    }
+}
+
+/// A value of one of the script's own types ([`super::types::KINDS`]), e.g. a `Figure`.
+impl<T: super::types::ValueType> Param for T {
+    const KIND: &'static str = T::NAME;
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        let found = convert::type_name(&v);
+        v.try_cast::<T>()
+            .ok_or_else(|| call.fail(format_args!("{arg} must be a {}, found {found}", T::NAME)))
     }
 }
 

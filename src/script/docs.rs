@@ -1,6 +1,7 @@
 //! The help text of every built-in, in one registry: it drives `statebook help`, the
-//! REPL's completion and the reference listing. Each binding file declares its entries
-//! beside its registrations (`DOCS`), so the documentation lives with the code.
+//! REPL's completion and the reference listing. The pages come from the declarations'
+//! doc comments (`script::declare`), from the binding files' `DOCS` for what is registered
+//! by hand, and from the standard library.
 
 /// One built-in's documentation.
 #[derive(Debug, Clone, Copy)]

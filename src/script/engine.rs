@@ -70,7 +70,6 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::plot::register(&mut e);
     builtins::time::register(&mut e);
     builtins::design::register(&mut e);
-    builtins::model_plots::register(&mut e);
     builtins::sweep::register(&mut e);
     for table in builtins::DECLARED {
         for b in table.iter() {

@@ -1,20 +1,14 @@
 //! Engineer-friendly arithmetic: `1 / 2` is 0.5, math functions take ints, and ints and
 //! floats mix freely. Integer division has a name of its own: `integer_quotient`.
 
-use crate::script::convert::{fail, to_f64, Rr};
+use crate::script::convert::{fail, Rr};
 use crate::script::docs::Doc;
 use rhai::{Dynamic, Engine, FLOAT, INT};
 
-/// Help entries of this file.
+/// The pages of the operators `^` and `%` and of the constant `pi`, registered by hand in
+/// [`register`]: an operator or a name read as a variable is not a function a declaration
+/// can describe. The functions of this file are declared in `BUILTINS`.
 pub const DOCS: &[Doc] = &[
-    Doc {
-        name: "integer_quotient",
-        family: "numbers",
-        usage: "integer_quotient(a, b) → int",
-        summary: "whole-number division rounded toward zero (`/` always gives a float)",
-        details: "a, b: ints; b must not be 0.",
-        example: "integer_quotient(7, 2)   // 3, while 7 / 2 is 3.5",
-    },
     Doc {
         name: "pi",
         family: "numbers",
@@ -45,195 +39,10 @@ pub const DOCS: &[Doc] = &[
                   and NaN for floats.",
         example: "print(-7 % 3);   // 2",
     },
-    Doc {
-        name: "sin",
-        family: "numbers",
-        usage: "sin(x) → float",
-        summary: "sine of an angle in radians",
-        details: "Takes ints or floats.",
-        example: "sin(pi / 6)   // 0.5",
-    },
-    Doc {
-        name: "cos",
-        family: "numbers",
-        usage: "cos(x) → float",
-        summary: "cosine of an angle in radians",
-        details: "Takes ints or floats.",
-        example: "cos(0)",
-    },
-    Doc {
-        name: "tan",
-        family: "numbers",
-        usage: "tan(x) → float",
-        summary: "tangent of an angle in radians",
-        details: "Takes ints or floats.",
-        example: "tan(pi / 4)",
-    },
-    Doc {
-        name: "asin",
-        family: "numbers",
-        usage: "asin(x) → float",
-        summary: "inverse sine in radians; x in [-1, 1] (outside it: an error, not NaN)",
-        details: "Takes ints or floats.",
-        example: "asin(1)",
-    },
-    Doc {
-        name: "acos",
-        family: "numbers",
-        usage: "acos(x) → float",
-        summary: "inverse cosine in radians; x in [-1, 1] (outside it: an error, not NaN)",
-        details: "Takes ints or floats.",
-        example: "acos(0)",
-    },
-    Doc {
-        name: "atan",
-        family: "numbers",
-        usage: "atan(x) → float\natan(y, x) → float",
-        summary:
-            "inverse tangent in radians; atan(y, x) is the angle of the point (x, y), in (-π, π]",
-        details: "Takes ints or floats.",
-        example: "atan(1, -1)   // 2.356…",
-    },
-    Doc {
-        name: "sinh",
-        family: "numbers",
-        usage: "sinh(x) → float",
-        summary: "hyperbolic sine",
-        details: "Takes ints or floats.",
-        example: "sinh(1)",
-    },
-    Doc {
-        name: "cosh",
-        family: "numbers",
-        usage: "cosh(x) → float",
-        summary: "hyperbolic cosine",
-        details: "Takes ints or floats.",
-        example: "cosh(1)",
-    },
-    Doc {
-        name: "tanh",
-        family: "numbers",
-        usage: "tanh(x) → float",
-        summary: "hyperbolic tangent",
-        details: "Takes ints or floats.",
-        example: "tanh(1)",
-    },
-    Doc {
-        name: "asinh",
-        family: "numbers",
-        usage: "asinh(x) → float",
-        summary: "inverse hyperbolic sine",
-        details: "Takes ints or floats.",
-        example: "asinh(1)",
-    },
-    Doc {
-        name: "acosh",
-        family: "numbers",
-        usage: "acosh(x) → float",
-        summary: "inverse hyperbolic cosine; x ≥ 1",
-        details: "Takes ints or floats.",
-        example: "acosh(2)",
-    },
-    Doc {
-        name: "atanh",
-        family: "numbers",
-        usage: "atanh(x) → float",
-        summary: "inverse hyperbolic tangent; x in [-1, 1]",
-        details: "Takes ints or floats.",
-        example: "atanh(0.5)",
-    },
-    Doc {
-        name: "sqrt",
-        family: "numbers",
-        usage: "sqrt(x) → float",
-        summary: "square root; x ≥ 0 (sqrt(complex(x, 0)) for the complex root)",
-        details: "Takes ints or floats.",
-        example: "sqrt(2)",
-    },
-    Doc {
-        name: "exp",
-        family: "numbers",
-        usage: "exp(x) → float",
-        summary: "exponential e^x (of a number or a Complex; A.exp() for the matrix exponential)",
-        details: "Takes ints or floats.",
-        example: "exp(1)",
-    },
-    Doc {
-        name: "ln",
-        family: "numbers",
-        usage: "ln(x) → float",
-        summary: "natural logarithm; x ≥ 0 (ln(0) is -inf)",
-        details: "Takes ints or floats.",
-        example: "ln(10)",
-    },
-    Doc {
-        name: "log",
-        family: "numbers",
-        usage: "log(x) → float",
-        summary: "natural logarithm, the same as ln (log10 is base 10)",
-        details: "Takes ints or floats.",
-        example: "log(exp(2))   // 2",
-    },
-    Doc {
-        name: "log10",
-        family: "numbers",
-        usage: "log10(x) → float",
-        summary: "base-10 logarithm; x ≥ 0",
-        details: "Takes ints or floats.",
-        example: "20 * log10(2)   // 6.02 dB",
-    },
-    Doc {
-        name: "log2",
-        family: "numbers",
-        usage: "log2(x) → float",
-        summary: "base-2 logarithm; x ≥ 0",
-        details: "Takes ints or floats.",
-        example: "log2(1024)",
-    },
-    Doc {
-        name: "hypot",
-        family: "numbers",
-        usage: "hypot(a, b) → float",
-        summary: "√(a² + b²) without overflow or underflow in between",
-        details: "Takes ints or floats.",
-        example: "hypot(3, 4)",
-    },
-    Doc {
-        name: "to_degrees",
-        family: "numbers",
-        usage: "to_degrees(x) → float",
-        summary: "radians to degrees",
-        details: "Takes ints or floats.",
-        example: "to_degrees(pi)",
-    },
-    Doc {
-        name: "to_radians",
-        family: "numbers",
-        usage: "to_radians(x) → float",
-        summary: "degrees to radians",
-        details: "Takes ints or floats.",
-        example: "to_radians(180)",
-    },
-    Doc {
-        name: "to_float",
-        family: "numbers",
-        usage: "to_float(x) → float",
-        summary: "the number as a float",
-        details: "Takes ints or floats.",
-        example: "to_float(3)",
-    },
 ];
 
 fn div_int(a: INT, b: INT) -> FLOAT {
     a as FLOAT / b as FLOAT
-}
-
-fn integer_quotient(a: INT, b: INT) -> Rr<INT> {
-    if b == 0 {
-        return Err(fail("integer_quotient: division by zero"));
-    }
-    a.checked_div(b)
-        .ok_or_else(|| fail("integer_quotient: result overflows an int"))
 }
 
 fn pow_int(a: INT, b: INT) -> Dynamic {
@@ -284,19 +93,22 @@ fn modulo_float(a: FLOAT, b: FLOAT) -> FLOAT {
     }
 }
 
-/// A one-argument function with a real domain: outside it, an error naming the domain
-/// instead of a silent NaN.
-fn domain(
+/// A one-argument function with a restricted real domain: outside it, an error naming the
+/// domain instead of a silent NaN.
+struct Domain {
     name: &'static str,
     f: fn(FLOAT) -> FLOAT,
     inside: fn(FLOAT) -> bool,
     what: &'static str,
-) -> impl Fn(FLOAT) -> Rr<FLOAT> + Send + Sync + 'static {
-    let has_complex = matches!(name, "sqrt" | "ln" | "log" | "log10");
-    move |x: FLOAT| {
-        if x.is_nan() || inside(x) {
-            Ok(f(x))
-        } else if has_complex {
+}
+
+impl Domain {
+    fn apply(&self, x: FLOAT) -> Rr<FLOAT> {
+        let name = self.name;
+        let what = self.what;
+        if x.is_nan() || (self.inside)(x) {
+            Ok((self.f)(x))
+        } else if matches!(name, "sqrt" | "ln" | "log" | "log10") {
             Err(fail(format!(
                 "{name}: expected {what}, found {x}\n\
                  hint: {name}(complex({x}, 0)) gives the complex value"
@@ -307,10 +119,71 @@ fn domain(
     }
 }
 
-/// Registers the arithmetic overloads.
+const SQRT: Domain = Domain {
+    name: "sqrt",
+    f: f64::sqrt,
+    inside: |x| x >= 0.0,
+    what: "a number ≥ 0",
+};
+const LN: Domain = Domain {
+    name: "ln",
+    f: f64::ln,
+    inside: |x| x >= 0.0,
+    what: "a number ≥ 0",
+};
+const LOG: Domain = Domain {
+    name: "log",
+    f: f64::ln,
+    inside: |x| x >= 0.0,
+    what: "a number ≥ 0",
+};
+const LOG10: Domain = Domain {
+    name: "log10",
+    f: f64::log10,
+    inside: |x| x >= 0.0,
+    what: "a number ≥ 0",
+};
+const LOG2: Domain = Domain {
+    name: "log2",
+    f: f64::log2,
+    inside: |x| x >= 0.0,
+    what: "a number ≥ 0",
+};
+const ASIN: Domain = Domain {
+    name: "asin",
+    f: f64::asin,
+    inside: |x| (-1.0..=1.0).contains(&x),
+    what: "a number in [-1, 1]",
+};
+const ACOS: Domain = Domain {
+    name: "acos",
+    f: f64::acos,
+    inside: |x| (-1.0..=1.0).contains(&x),
+    what: "a number in [-1, 1]",
+};
+const ACOSH: Domain = Domain {
+    name: "acosh",
+    f: f64::acosh,
+    inside: |x| x >= 1.0,
+    what: "a number ≥ 1",
+};
+const ATANH: Domain = Domain {
+    name: "atanh",
+    f: f64::atanh,
+    inside: |x| (-1.0..=1.0).contains(&x),
+    what: "a number in [-1, 1]",
+};
+
+/// The functions with a restricted domain. The engine has float forms of its own (its
+/// `log` is base 10, its `sqrt(-1.0)` is NaN); [`register`] overrides those with exact
+/// float forms, which the engine picks before any declaration (whose parameters take any
+/// value). Both forms run [`Domain::apply`].
+const RESTRICTED: &[Domain] = &[SQRT, LN, LOG, LOG10, LOG2, ASIN, ACOS, ACOSH, ATANH];
+
+/// Registers the operators, `pi`, and the exact float forms of the [`RESTRICTED`]
+/// functions (the functions themselves are declared in `BUILTINS`).
 pub fn register(engine: &mut Engine) {
     engine.register_fn("/", div_int);
-    engine.register_fn("integer_quotient", integer_quotient);
     engine.register_fn("**", pow_int);
     engine.register_fn("**", |a: INT, b: FLOAT| pow_float(a as FLOAT, b));
     engine.register_fn("**", |a: FLOAT, b: INT| pow_float(a, b as FLOAT));
@@ -319,50 +192,9 @@ pub fn register(engine: &mut Engine) {
     engine.register_fn("%", modulo_float);
     engine.register_fn("%", |a: INT, b: FLOAT| modulo_float(a as FLOAT, b));
     engine.register_fn("%", |a: FLOAT, b: INT| modulo_float(a, b as FLOAT));
-    // One-argument math functions accept ints as well as floats.
-    macro_rules! unary {
-        ($($name:literal => $f:expr),* $(,)?) => {
-            $( engine.register_fn($name, |x: INT| -> FLOAT { let g: fn(FLOAT) -> FLOAT = $f; g(x as FLOAT) }); )*
-        };
+    for d in RESTRICTED {
+        engine.register_fn(d.name, move |x: FLOAT| d.apply(x));
     }
-    unary!(
-        "sin" => f64::sin, "cos" => f64::cos, "tan" => f64::tan, "atan" => f64::atan,
-        "sinh" => f64::sinh, "cosh" => f64::cosh, "tanh" => f64::tanh,
-        "asinh" => f64::asinh, "exp" => f64::exp, "to_degrees" => f64::to_degrees,
-        "to_radians" => f64::to_radians,
-    );
-    // Functions with a restricted real domain, for ints and floats alike. `log` is the
-    // natural logarithm, as engineers read it; `log10` is base 10.
-    macro_rules! restricted {
-        ($($name:literal => $f:expr, $inside:expr, $what:literal);* $(;)?) => {$(
-            {
-                let g = domain($name, $f, $inside, $what);
-                engine.register_fn($name, move |x: INT| g(x as FLOAT));
-                engine.register_fn($name, domain($name, $f, $inside, $what));
-            }
-        )*};
-    }
-    restricted!(
-        "sqrt" => f64::sqrt, |x| x >= 0.0, "a number ≥ 0";
-        "ln" => f64::ln, |x| x >= 0.0, "a number ≥ 0";
-        "log" => f64::ln, |x| x >= 0.0, "a number ≥ 0";
-        "log10" => f64::log10, |x| x >= 0.0, "a number ≥ 0";
-        "log2" => f64::log2, |x| x >= 0.0, "a number ≥ 0";
-        "asin" => f64::asin, |x| (-1.0..=1.0).contains(&x), "a number in [-1, 1]";
-        "acos" => f64::acos, |x| (-1.0..=1.0).contains(&x), "a number in [-1, 1]";
-        "acosh" => f64::acosh, |x| x >= 1.0, "a number ≥ 1";
-        "atanh" => f64::atanh, |x| (-1.0..=1.0).contains(&x), "a number in [-1, 1]";
-    );
-    engine.register_fn("to_degrees", |x: FLOAT| x.to_degrees());
-    engine.register_fn("to_radians", |x: FLOAT| x.to_radians());
-    // Two-argument functions: any mix of ints and floats.
-    engine.register_fn("atan", |y: Dynamic, x: Dynamic| -> Rr<FLOAT> {
-        Ok(to_f64(&y, "atan", "y")?.atan2(to_f64(&x, "atan", "x")?))
-    });
-    engine.register_fn("hypot", |a: Dynamic, b: Dynamic| -> Rr<FLOAT> {
-        Ok(to_f64(&a, "hypot", "a")?.hypot(to_f64(&b, "hypot", "b")?))
-    });
-    engine.register_fn("to_float", |x: FLOAT| x);
     // `pi` as a name: resolved only when the script has no variable of that name.
     #[allow(deprecated)] // the API is marked volatile, not deprecated
     engine.on_var(|name, _, ctx| {
@@ -385,4 +217,213 @@ pub fn register(engine: &mut Engine) {
         "==" => |a, b| a == b, "!=" => |a, b| a != b, "<" => |a, b| a < b,
         "<=" => |a, b| a <= b, ">" => |a, b| a > b, ">=" => |a, b| a >= b,
     );
+}
+
+crate::builtins! {
+    /// whole-number division rounded toward zero (`/` always gives a float)
+    ///
+    /// a, b: ints; b must not be 0.
+    ///
+    /// example:
+    ///     integer_quotient(7, 2)   // 3, while 7 / 2 is 3.5
+    #[family = "numbers"]
+    fn integer_quotient(call, a: INT, b: INT) -> INT {
+        if b == 0 {
+            return Err(call.fail("division by zero"));
+        }
+        a.checked_div(b)
+            .ok_or_else(|| call.fail("result overflows an int"))
+    }
+
+    /// sine of an angle in radians
+    ///
+    /// example:
+    ///     sin(pi / 6)   // 0.5
+    #[family = "numbers"]
+    fn sin(call, x: FLOAT) -> FLOAT {
+        Ok(x.sin())
+    }
+
+    /// cosine of an angle in radians
+    ///
+    /// example:
+    ///     cos(0)
+    #[family = "numbers"]
+    fn cos(call, x: FLOAT) -> FLOAT {
+        Ok(x.cos())
+    }
+
+    /// tangent of an angle in radians
+    ///
+    /// example:
+    ///     tan(pi / 4)
+    #[family = "numbers"]
+    fn tan(call, x: FLOAT) -> FLOAT {
+        Ok(x.tan())
+    }
+
+    /// inverse sine in radians; x in [-1, 1] (outside it: an error, not NaN)
+    ///
+    /// example:
+    ///     asin(1)
+    #[family = "numbers"]
+    fn asin(call, x: FLOAT) -> FLOAT {
+        ASIN.apply(x)
+    }
+
+    /// inverse cosine in radians; x in [-1, 1] (outside it: an error, not NaN)
+    ///
+    /// example:
+    ///     acos(0)
+    #[family = "numbers"]
+    fn acos(call, x: FLOAT) -> FLOAT {
+        ACOS.apply(x)
+    }
+
+    /// inverse tangent in radians; atan(y, x) is the angle of the point (x, y), in (-π, π]
+    ///
+    /// example:
+    ///     atan(1, -1)   // 2.356…
+    #[family = "numbers"]
+    fn atan(call, x: FLOAT) -> FLOAT {
+        Ok(x.atan())
+    }
+    fn atan(call, y: FLOAT, x: FLOAT) -> FLOAT {
+        Ok(y.atan2(x))
+    }
+
+    /// hyperbolic sine
+    ///
+    /// example:
+    ///     sinh(1)
+    #[family = "numbers"]
+    fn sinh(call, x: FLOAT) -> FLOAT {
+        Ok(x.sinh())
+    }
+
+    /// hyperbolic cosine
+    ///
+    /// example:
+    ///     cosh(1)
+    #[family = "numbers"]
+    fn cosh(call, x: FLOAT) -> FLOAT {
+        Ok(x.cosh())
+    }
+
+    /// hyperbolic tangent
+    ///
+    /// example:
+    ///     tanh(1)
+    #[family = "numbers"]
+    fn tanh(call, x: FLOAT) -> FLOAT {
+        Ok(x.tanh())
+    }
+
+    /// inverse hyperbolic sine
+    ///
+    /// example:
+    ///     asinh(1)
+    #[family = "numbers"]
+    fn asinh(call, x: FLOAT) -> FLOAT {
+        Ok(x.asinh())
+    }
+
+    /// inverse hyperbolic cosine; x ≥ 1
+    ///
+    /// example:
+    ///     acosh(2)
+    #[family = "numbers"]
+    fn acosh(call, x: FLOAT) -> FLOAT {
+        ACOSH.apply(x)
+    }
+
+    /// inverse hyperbolic tangent; x in [-1, 1]
+    ///
+    /// example:
+    ///     atanh(0.5)
+    #[family = "numbers"]
+    fn atanh(call, x: FLOAT) -> FLOAT {
+        ATANH.apply(x)
+    }
+
+    /// square root; x ≥ 0 (sqrt(complex(x, 0)) for the complex root)
+    ///
+    /// example:
+    ///     sqrt(2)
+    #[family = "numbers"]
+    fn sqrt(call, x: FLOAT) -> FLOAT {
+        SQRT.apply(x)
+    }
+
+    /// natural logarithm; x ≥ 0 (ln(0) is -inf)
+    ///
+    /// example:
+    ///     ln(10)
+    #[family = "numbers"]
+    fn ln(call, x: FLOAT) -> FLOAT {
+        LN.apply(x)
+    }
+
+    /// natural logarithm, the same as ln (log10 is base 10)
+    ///
+    /// example:
+    ///     log(exp(2))   // 2
+    #[family = "numbers"]
+    fn log(call, x: FLOAT) -> FLOAT {
+        LOG.apply(x)
+    }
+
+    /// base-10 logarithm; x ≥ 0
+    ///
+    /// example:
+    ///     20 * log10(2)   // 6.02 dB
+    #[family = "numbers"]
+    fn log10(call, x: FLOAT) -> FLOAT {
+        LOG10.apply(x)
+    }
+
+    /// base-2 logarithm; x ≥ 0
+    ///
+    /// example:
+    ///     log2(1024)
+    #[family = "numbers"]
+    fn log2(call, x: FLOAT) -> FLOAT {
+        LOG2.apply(x)
+    }
+
+    /// √(a² + b²) without overflow or underflow in between
+    ///
+    /// example:
+    ///     hypot(3, 4)
+    #[family = "numbers"]
+    fn hypot(call, a: FLOAT, b: FLOAT) -> FLOAT {
+        Ok(a.hypot(b))
+    }
+
+    /// radians to degrees
+    ///
+    /// example:
+    ///     to_degrees(pi)
+    #[family = "numbers"]
+    fn to_degrees(call, x: FLOAT) -> FLOAT {
+        Ok(x.to_degrees())
+    }
+
+    /// degrees to radians
+    ///
+    /// example:
+    ///     to_radians(180)
+    #[family = "numbers"]
+    fn to_radians(call, x: FLOAT) -> FLOAT {
+        Ok(x.to_radians())
+    }
+
+    /// the number as a float
+    ///
+    /// example:
+    ///     to_float(3)
+    #[family = "numbers"]
+    fn to_float(call, x: FLOAT) -> FLOAT {
+        Ok(x)
+    }
 }

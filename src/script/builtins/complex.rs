@@ -109,7 +109,6 @@ pub fn register(engine: &mut Engine) {
     engine.register_get("arg", |z: &mut Complex| z.0.arg());
     engine.register_fn("abs", |z: Complex| z.0.norm());
     engine.register_fn("sqrt", |z: Complex| Complex(z.0.sqrt()));
-    engine.register_fn("exp", |z: Complex| Complex(z.0.exp()));
     engine.register_fn("ln", |z: Complex| Complex(z.0.ln()));
     engine.register_fn("log", |z: Complex| Complex(z.0.ln()));
     engine.register_fn("log10", |z: Complex| Complex(z.0.log10()));

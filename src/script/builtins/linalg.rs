@@ -42,18 +42,28 @@ impl Param for Blocks {
     }
 }
 
-/// A `Matrix` value itself (not an array of rows or a number): for `exp`, whose number
-/// and Complex forms are registered with those types (`arith`, `complex`).
-struct MatrixValue(DMatrix<f64>);
+/// What `exp` takes: a number, a Complex, or a `Matrix` value itself (not an array of rows,
+/// which would be ambiguous with an array of numbers).
+enum Exponent {
+    Number(f64),
+    Complex(nalgebra::Complex<f64>),
+    Matrix(DMatrix<f64>),
+}
 
-impl Param for MatrixValue {
-    const KIND: &'static str = "Matrix";
+impl Param for Exponent {
+    const KIND: &'static str = "number | Complex | Matrix";
     fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
         if let Some(m) = v.read_lock::<Matrix>() {
-            return Ok(MatrixValue(m.0.clone()));
+            return Ok(Exponent::Matrix(m.0.clone()));
+        }
+        if let Some(z) = v.read_lock::<Complex>() {
+            return Ok(Exponent::Complex(z.0));
+        }
+        if v.is_int() || v.is_float() {
+            return call.number(&v, arg).map(Exponent::Number);
         }
         Err(call.fail(format_args!(
-            "{arg} must be a Matrix, found {}",
+            "{arg} must be a number, a Complex or a Matrix, found {}",
             type_name(&v)
         )))
     }
@@ -154,16 +164,22 @@ crate::builtins! {
         dense::condition(&A).map_err(call.num())
     }
 
-    /// the matrix exponential e^A (scaling and squaring, Padé; Al-Mohy & Higham 2009)
+    /// the exponential: e^x of a number or a Complex, the matrix exponential e^A of a Matrix
     ///
-    /// A: a square Matrix (exp of a float is the ordinary exponential). As a method:
-    /// A.exp().
+    /// Of a Matrix (square): scaling and squaring with Padé approximants (Al-Mohy &
+    /// Higham 2009). As a method: A.exp().
     ///
     /// example:
+    ///     exp(1);                           // 2.71828…
+    ///     exp(complex(0, pi));              // −1 + 0j, up to rounding
     ///     matrix([[0, 1], [-1, 0]]).exp()   // a rotation by 1 rad
     #[family = "linear algebra"]
-    fn exp(call, A: MatrixValue) -> Matrix {
-        expm::expm(&A.0).map(Matrix).map_err(call.num())
+    fn exp(call, x: Exponent) -> Dynamic as "float | Complex | Matrix" {
+        Ok(match x {
+            Exponent::Number(x) => Dynamic::from_float(x.exp()),
+            Exponent::Complex(z) => Dynamic::from(Complex(z.exp())),
+            Exponent::Matrix(A) => Dynamic::from(Matrix(expm::expm(&A).map_err(call.num())?)),
+        })
     }
 
     /// the solution X of A X = B for square non-singular A

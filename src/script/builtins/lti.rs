@@ -31,10 +31,9 @@ pub const DOCS: &[Doc] = &[Doc {
     example: "plant.A",
 }];
 
-/// Registers the model types and their properties (`sys.A`, `tf.num`, …).
+/// Registers the model properties (`sys.A`, `tf.num`, …); the types themselves come from
+/// the value-type registry (`types::KINDS`).
 pub fn register(engine: &mut Engine) {
-    engine.register_type_with_name::<System>("System");
-    engine.register_type_with_name::<TransferFunction>("TransferFunction");
     // Getters.
     engine.register_get("A", |s: &mut System| matrix_value(s.0.a.clone()));
     engine.register_get("B", |s: &mut System| matrix_value(s.0.b.clone()));

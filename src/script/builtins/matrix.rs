@@ -90,7 +90,6 @@ fn scale(m: &Matrix, s: FLOAT) -> Matrix {
 
 /// Registers matrix construction, access and operators.
 pub fn register(engine: &mut Engine) {
-    engine.register_type_with_name::<Matrix>("Matrix");
     engine.register_get("rows", |m: &mut Matrix| m.0.nrows() as INT);
     engine.register_get("cols", |m: &mut Matrix| m.0.ncols() as INT);
     engine.register_fn(

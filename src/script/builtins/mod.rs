@@ -1,5 +1,8 @@
-//! One binding file per domain, mirroring `numeric/`. Each has `register` and `DOCS`;
-//! `script::engine` registers them all in one place.
+//! One binding file per domain, mirroring `numeric/`. Each declares its built-ins in
+//! `BUILTINS` (see `script::declare`); what a declaration cannot describe (properties,
+//! methods that change a value in place, operators, value types) is registered by hand in
+//! its `register` and documented in its `DOCS`. `script::engine` registers them all in one
+//! place.
 
 pub mod arith;
 pub mod complex;
@@ -35,9 +38,13 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     output::BUILTINS,
     time::BUILTINS,
     time::PLOT_BUILTINS,
+    sweep::BUILTINS,
+    plot::BUILTINS,
+    model_plots::BUILTINS,
+    arith::BUILTINS,
 ];
 
-/// Help tables of the binding files not yet written as declarations.
+/// The hand-written pages: properties, in-place methods, operators and value types.
 pub const DOC_TABLES: &[&[Doc]] = &[
     crate::script::sizes::DOCS,
     arith::DOCS,
@@ -48,7 +55,6 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     plot::DOCS,
     time::DOCS,
     design::DOCS,
-    model_plots::DOCS,
     sweep::DOCS,
 ];
 

@@ -1,4 +1,4 @@
-//! Model figures: `plot_bode`, `plot_nyquist`, `plot_poles`, `plot_root_locus`,
+//! Model figures, declared: `plot_bode`, `plot_nyquist`, `plot_poles`, `plot_root_locus`,
 //! `plot_singular_values`. The curves come from `crate::numeric::freq::curves` and
 //! `crate::numeric::design::root_locus`; the drawing is `crate::plot`.
 
@@ -8,77 +8,107 @@ use crate::numeric::freq::{curves, margins};
 use crate::numeric::lti::system::StateSpace;
 use crate::numeric::lti::{properties, zeros};
 use crate::plot::{Figure as PlotFigure, FrequencyCurve, PlotOptions};
-use crate::script::convert::{fail, num, to_str, to_system, type_name, Rr};
-use crate::script::docs::Doc;
+use crate::script::convert::{fail, num, to_str, type_name, Rr};
+use crate::script::declare::{Model, Models};
 use crate::script::types::Figure;
-use rhai::{Array, Dynamic, Engine, Map};
+use rhai::{Array, Map};
 
-/// Help entries of this file.
-pub const DOCS: &[Doc] = &[
-    Doc { name: "plot_bode", family: "plots",
-        usage: "plot_bode(sys_or_array) → Figure\nplot_bode(sys_or_array, options) → Figure",
-        summary: "magnitude (dB) above phase (degrees) over a logarithmic frequency axis",
-        details: "sys_or_array: a model or an array of models, overlaid in one figure (a MIMO \
-                  model draws every channel). The frequency grid covers every pole and zero \
-                  of all models and is refined where the curves bend, so resonances are \
-                  resolved; the phase is unwrapped continuously. Frequencies in rad/s; a \
-                  discrete model's curves end at its Nyquist frequency π/dt. \
-                  options: the plot options (title, x_label, y_label, legend — an array of \
-                  names, one per model, or false — width, height) and margins: true, which \
-                  marks the 0 dB line, the gain and phase crossovers and the margins (see \
-                  loop_margins) of the first single-input single-output model in the list.",
-        example: "let l = transfer_function([1], [1, 3, 2, 0]);\nplot_bode(l, #{ margins: true, title: \"loop gain\" })" },
-    Doc { name: "plot_nyquist", family: "plots",
-        usage: "plot_nyquist(sys_or_array) → Figure\nplot_nyquist(sys_or_array, options) → Figure",
-        summary: "the Nyquist curve of a SISO loop gain, with the critical point −1 and direction arrows",
-        details: "Positive frequencies solid, their mirror image (negative frequencies) \
-                  dashed, arrows in the direction of increasing frequency. A loop with a \
-                  pole on the imaginary axis (unit circle) has an unbounded curve: it is cut \
-                  at radius 5 around the origin. options: as plot (title, legend, …).",
-        example: "plot_nyquist(transfer_function([4], [1, 3, 3, 1]))" },
-    Doc { name: "plot_poles", family: "plots",
-        usage: "plot_poles(sys) → Figure\nplot_poles(sys, options) → Figure",
-        summary: "poles (crosses) and transmission zeros (rings) in the complex plane",
-        details: "Equal scales on both axes. options: as plot (title, …).",
-        example: "plot_poles(transfer_function([1, 2], [1, 2, 5]))" },
-    Doc { name: "plot_root_locus", family: "plots",
-        usage: "plot_root_locus(loop_gain) → Figure\nplot_root_locus(loop_gain, options) → Figure",
-        summary: "the closed-loop poles of 1 + k·L(s) = 0 for gains k from 0 to large",
-        details: "loop_gain: a SISO model L in the unity negative feedback loop u = −k·y. \
-                  Branches start at the open-loop poles (crosses) and end at the zeros \
-                  (rings) or leave towards infinity (drawn out to about 4× the largest pole \
-                  or zero modulus); squares mark the closed-loop poles at k = 1, the loop \
-                  as given. The gain grid is adaptive: it is refined wherever a pole \
-                  moves fast (near breakaway points), so the branches stay smooth. options: \
-                  as plot.",
-        example: "plot_root_locus(transfer_function([1, 3], [1, 3, 2, 0]))" },
-    Doc { name: "plot_singular_values", family: "plots",
-        usage: "plot_singular_values(sys) → Figure\nplot_singular_values(sys, options) → Figure",
-        summary: "the singular values of G(jω) in dB over frequency (the MIMO gain range)",
-        details: "One curve per singular value, largest first: at each frequency the gain of \
-                  the model lies between the smallest and largest for every input direction. \
-                  Frequencies in rad/s on a logarithmic axis. options: as plot.",
-        example: "plot_singular_values(state_space([[-1, 0], [0, -3]], identity(2), [[1, 1], [0, 2]], 0))" },
-];
+crate::builtins! {
+    /// magnitude (dB) above phase (degrees) over a logarithmic frequency axis
+    ///
+    /// models: a model or an array of models, overlaid in one figure (a MIMO model draws
+    /// every channel). The frequency grid covers every pole and zero of all models and is
+    /// refined where the curves bend, so resonances are resolved; the phase is unwrapped
+    /// continuously. Frequencies in rad/s; a discrete model's curves end at its Nyquist
+    /// frequency π/dt.
+    ///
+    /// options: the plot options (title, x_label, y_label, legend — an array of names, one
+    /// per model, or false — width, height) and margins: true, which marks the 0 dB line,
+    /// the gain and phase crossovers and the margins (see loop_margins) of the first
+    /// single-input single-output model in the list.
+    ///
+    /// example:
+    ///     let l = transfer_function([1], [1, 3, 2, 0]);
+    ///     plot_bode(l, #{ margins: true, title: "loop gain" })
+    #[family = "plots"]
+    fn plot_bode(call, models: Models) -> Figure {
+        bode(&models.0, None)
+    }
+    fn plot_bode(call, models: Models, options: Map) -> Figure {
+        bode(&models.0, Some(&options))
+    }
+
+    /// the Nyquist curve of a SISO loop gain, with the critical point −1 and direction arrows
+    ///
+    /// models: a model or an array of models, overlaid. Positive frequencies solid, their
+    /// mirror image (negative frequencies) dashed, arrows in the direction of increasing
+    /// frequency. A loop with a pole on the imaginary axis (unit circle) has an unbounded
+    /// curve: it is cut at radius 5 around the origin. options: as plot (title, legend, …).
+    ///
+    /// example:
+    ///     plot_nyquist(transfer_function([4], [1, 3, 3, 1]))
+    #[family = "plots"]
+    fn plot_nyquist(call, models: Models) -> Figure {
+        nyquist(&models.0, None)
+    }
+    fn plot_nyquist(call, models: Models, options: Map) -> Figure {
+        nyquist(&models.0, Some(&options))
+    }
+
+    /// poles (crosses) and transmission zeros (rings) in the complex plane
+    ///
+    /// Equal scales on both axes. options: as plot (title, …).
+    ///
+    /// example:
+    ///     plot_poles(transfer_function([1, 2], [1, 2, 5]))
+    #[family = "plots"]
+    fn plot_poles(call, sys: Model) -> Figure {
+        pole_zero(&sys, None)
+    }
+    fn plot_poles(call, sys: Model, options: Map) -> Figure {
+        pole_zero(&sys, Some(&options))
+    }
+
+    /// the closed-loop poles of 1 + k·L(s) = 0 for gains k from 0 to large
+    ///
+    /// loop_gain: a SISO model L in the unity negative feedback loop u = −k·y. Branches
+    /// start at the open-loop poles (crosses) and end at the zeros (rings) or leave towards
+    /// infinity (drawn out to about 4× the largest pole or zero modulus); squares mark the
+    /// closed-loop poles at k = 1, the loop as given. The gain grid is adaptive: it is
+    /// refined wherever a pole moves fast (near breakaway points), so the branches stay
+    /// smooth. options: as plot.
+    ///
+    /// example:
+    ///     plot_root_locus(transfer_function([1, 3], [1, 3, 2, 0]))
+    #[family = "plots"]
+    fn plot_root_locus(call, loop_gain: Model) -> Figure {
+        locus(&loop_gain, None)
+    }
+    fn plot_root_locus(call, loop_gain: Model, options: Map) -> Figure {
+        locus(&loop_gain, Some(&options))
+    }
+
+    /// the singular values of G(jω) in dB over frequency (the MIMO gain range)
+    ///
+    /// One curve per singular value, largest first: at each frequency the gain of the
+    /// model lies between the smallest and largest for every input direction. Frequencies
+    /// in rad/s on a logarithmic axis. options: as plot.
+    ///
+    /// example:
+    ///     plot_singular_values(state_space([[-1, 0], [0, -3]], identity(2), [[1, 1], [0, 2]], 0))
+    #[family = "plots"]
+    fn plot_singular_values(call, sys: Model) -> Figure {
+        sigma(&sys, None)
+    }
+    fn plot_singular_values(call, sys: Model, options: Map) -> Figure {
+        sigma(&sys, Some(&options))
+    }
+}
 
 const FREQ_LABEL: &str = "frequency (rad/s)";
 
 /// Radius at which unbounded Nyquist curves are cut.
 const NYQUIST_CLIP: f64 = 5.0;
-
-fn models(v: &Dynamic, f: &str) -> Rr<Vec<StateSpace>> {
-    if let Some(a) = v.read_lock::<Array>() {
-        if a.is_empty() {
-            return Err(fail(format!("{f}: the array of models is empty")));
-        }
-        return a
-            .iter()
-            .enumerate()
-            .map(|(k, m)| to_system(m, f, &format!("models[{k}]")))
-            .collect();
-    }
-    Ok(vec![to_system(v, f, "sys")?])
-}
 
 /// The options map split into the plot options and our own `margins` flag.
 fn split_options(o: Option<&Map>, f: &str, extra: &[&str]) -> Rr<(PlotOptions, Map)> {
@@ -121,9 +151,8 @@ fn finish(mut fig: PlotFigure, o: &PlotOptions) -> Figure {
     Figure(fig)
 }
 
-fn bode(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
+fn bode(list: &[StateSpace], o: Option<&Map>) -> Rr<Figure> {
     let f = "plot_bode";
-    let list = models(v, f)?;
     let (opts, own) = split_options(o, f, &["margins"])?;
     let with_margins = match own.get("margins") {
         None => false,
@@ -226,9 +255,8 @@ fn margin_marks(m: &margins::Margins, c: &curves::ChannelCurve) -> MarginMarks {
     (gc, pc)
 }
 
-fn nyquist(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
+fn nyquist(list: &[StateSpace], o: Option<&Map>) -> Rr<Figure> {
     let f = "plot_nyquist";
-    let list = models(v, f)?;
     let (opts, _) = split_options(o, f, &[])?;
     let names = legend_names(o, f)?;
     let mut data = Vec::new();
@@ -247,11 +275,10 @@ fn pairs(v: &[nalgebra::Complex<f64>]) -> Vec<(f64, f64)> {
     v.iter().map(|z| (z.re, z.im)).collect()
 }
 
-fn pole_zero(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
+fn pole_zero(sys: &StateSpace, o: Option<&Map>) -> Rr<Figure> {
     let f = "plot_poles";
-    let sys = to_system(v, f, "sys")?;
     let (opts, _) = split_options(o, f, &[])?;
-    let p = properties::poles(&sys).map_err(num(f))?;
+    let p = properties::poles(sys).map_err(num(f))?;
     let z = if sys.order() > 0 && sys.inputs() > 0 && sys.outputs() > 0 {
         zeros::transmission_zeros(&sys.a, &sys.b, &sys.c, &sys.d).map_err(num(f))?
     } else {
@@ -263,11 +290,10 @@ fn pole_zero(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
     ))
 }
 
-fn locus(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
+fn locus(sys: &StateSpace, o: Option<&Map>) -> Rr<Figure> {
     let f = "plot_root_locus";
-    let sys = to_system(v, f, "loop_gain")?;
     let (opts, _) = split_options(o, f, &[])?;
-    let rl = root_locus::root_locus(&sys).map_err(num(f))?;
+    let rl = root_locus::root_locus(sys).map_err(num(f))?;
     let branches = rl
         .branches
         .iter()
@@ -288,12 +314,11 @@ fn locus(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
     Ok(finish(fig, &opts))
 }
 
-fn sigma(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
+fn sigma(sys: &StateSpace, o: Option<&Map>) -> Rr<Figure> {
     let f = "plot_singular_values";
-    let sys = to_system(v, f, "sys")?;
     let (opts, _) = split_options(o, f, &[])?;
-    let grid = curves::common_grid(&[&sys]).map_err(num(f))?;
-    let sv = curves::singular_value_curves(&sys, &grid).map_err(num(f))?;
+    let grid = curves::common_grid(&[sys]).map_err(num(f))?;
+    let sv = curves::singular_value_curves(sys, &grid).map_err(num(f))?;
     let db = sv
         .into_iter()
         .map(|c| {
@@ -308,37 +333,21 @@ fn sigma(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
     ))
 }
 
-/// Registers the model figures.
-pub fn register(engine: &mut Engine) {
-    macro_rules! both {
-        ($name:literal, $f:ident) => {
-            engine.register_fn($name, |v: Dynamic| $f(&v, None));
-            engine.register_fn($name, |v: Dynamic, o: Map| $f(&v, Some(&o)));
-        };
-    }
-    both!("plot_bode", bode);
-    both!("plot_nyquist", nyquist);
-    both!("plot_poles", pole_zero);
-    both!("plot_root_locus", locus);
-    both!("plot_singular_values", sigma);
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::script::convert::system_value;
     use nalgebra::DMatrix;
 
-    fn first_order(pole: f64, dt: f64) -> Dynamic {
+    fn first_order(pole: f64, dt: f64) -> StateSpace {
         let m = |v: f64| DMatrix::from_element(1, 1, v);
-        system_value(StateSpace::new(m(pole), m(1.0), m(1.0), m(0.0), dt).expect("valid model"))
+        StateSpace::new(m(pole), m(1.0), m(1.0), m(0.0), dt).expect("valid model")
     }
 
     #[test]
     fn discrete_bode_curves_end_at_the_nyquist_frequency() {
         // A continuous lag at 1 rad/s (grid to 100 rad/s) overlaid with a discrete model,
         // dt = 0.1: the discrete curves must end at π/dt ≈ 31.4 rad/s, not at 100.
-        let both = Dynamic::from_array(vec![first_order(-1.0, 0.0), first_order(0.5, 0.1)]);
+        let both = [first_order(-1.0, 0.0), first_order(0.5, 0.1)];
         let fig = bode(&both, None).expect("plots");
         let nyquist = std::f64::consts::PI / 0.1;
         let ends: Vec<f64> = fig.0.panels[0]
@@ -350,7 +359,7 @@ mod tests {
         assert!(ends[0] > 99.0, "continuous curve ends at {}", ends[0]);
         assert_eq!(ends[1], nyquist, "discrete curve ends at {}", ends[1]);
         // Alone, a discrete model's curves also reach π/dt exactly.
-        let fig = bode(&first_order(0.5, 0.1), None).expect("plots");
+        let fig = bode(&[first_order(0.5, 0.1)], None).expect("plots");
         let end = fig.0.panels[1].series[0]
             .x
             .iter()

@@ -1,34 +1,88 @@
-//! Figures: `plot`, `fig.add`, `fig.save`. The drawing itself is `crate::plot`.
+//! Figures: `plot`, `fig.add`, `save`. The drawing itself is `crate::plot`.
 
 use crate::plot::{Figure as PlotFigure, MarkerShape, PlotOptions, Series};
 use crate::script::convert::{fail, to_f64_vec, to_finite_vec, to_str, type_name, Rr};
+use crate::script::declare::{Call, Param};
 use crate::script::docs::Doc;
 use crate::script::state;
 use crate::script::types::Figure;
-use rhai::{Array, Dynamic, Engine, Map, NativeCallContext};
+use rhai::{Array, Dynamic, Engine, Map};
 
-/// Help entries of this file.
-pub const DOCS: &[Doc] = &[
-    Doc { name: "plot", family: "plots",
-        usage: "plot(x, y) → Figure\nplot(x, y, options) → Figure",
-        summary: "a line plot of y against x; y may be an array of series",
-        details: "x: array of numbers. y: array of numbers, or an array of such arrays (one \
-                  series each). options: #{ title, x_label, y_label, legend, log_x, log_y, \
-                  markers, width, height } — legend is an array of series names (or false); \
-                  markers: true draws points instead of lines. A y value inf or -inf is a \
-                  gap: the line stops before it and starts again after it (as loop_margins \
-                  reports a missing margin); NaN is refused.",
-        example: "let t = linear_grid(0, 5, 101);\nlet y = t.map(|v| exp(-v));\nplot(t, y, #{ title: \"decay\", x_label: \"time (s)\" })" },
-    Doc { name: "add", family: "plots", usage: "fig.add(x, y)\nfig.add(x, y, options)",
-        summary: "adds a series to a figure's first panel",
-        details: "options: #{ label, dashed, markers }. As in plot, a y value inf or -inf \
-                  is a gap in the line; NaN is refused.",
-        example: "let fig = plot([0, 1], [0, 1]);\nfig.add([0, 1], [1, 0], #{ label: \"falling\" });\nfig" },
-    Doc { name: "save", family: "plots", usage: "fig.save(path)",
-        summary: "writes a figure as an SVG file (inside the analysis folder)",
-        details: "path: relative to the analysis file; the folder must exist.",
-        example: "plot([0, 1], [0, 1]).save(\"line.svg\");" },
-];
+/// The page of `fig.add`, registered by hand in [`register`]: it changes the figure in
+/// place, which a declaration (whose arguments are copies) cannot (`plot` and `save` are
+/// declared in `BUILTINS`).
+pub const DOCS: &[Doc] = &[Doc {
+    name: "add",
+    family: "plots",
+    usage: "fig.add(x, y)\nfig.add(x, y, options)",
+    summary: "adds a series to a figure's first panel",
+    details: "options: #{ label, dashed, markers }. As in plot, a y value inf or -inf is a gap \
+              in the line; NaN is refused.",
+    example:
+        "let fig = plot([0, 1], [0, 1]);\nfig.add([0, 1], [1, 0], #{ label: \"falling\" });\nfig",
+}];
+
+/// The x values of a plot: finite numbers.
+struct Abscissae(Vec<f64>);
+
+impl Param for Abscissae {
+    const KIND: &'static str = "numbers";
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        to_finite_vec(&v, call.name, arg).map(Abscissae)
+    }
+}
+
+/// The y values of a plot: one series of numbers, or an array of series (`inf`/`-inf`
+/// are gaps).
+struct SeriesList(Vec<Vec<f64>>);
+
+impl Param for SeriesList {
+    const KIND: &'static str = "numbers | [numbers]";
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        series_list(&v, call.name, arg).map(SeriesList)
+    }
+}
+
+crate::builtins! {
+    /// a line plot of y against x; y may be an array of series
+    ///
+    /// x: array of numbers. y: array of numbers, or an array of such arrays (one series
+    /// each). options: #{ title, x_label, y_label, legend, log_x, log_y, markers, width,
+    /// height } — legend is an array of series names (or false); markers: true draws
+    /// points instead of lines. A y value inf or -inf is a gap: the line stops before it
+    /// and starts again after it (as loop_margins reports a missing margin); NaN is
+    /// refused.
+    ///
+    /// example:
+    ///     let t = linear_grid(0, 5, 101);
+    ///     let y = t.map(|v| exp(-v));
+    ///     plot(t, y, #{ title: "decay", x_label: "time (s)" })
+    #[family = "plots"]
+    fn plot(call, x: Abscissae, y: SeriesList) -> Figure {
+        make_plot(x.0, y.0, None)
+    }
+    fn plot(call, x: Abscissae, y: SeriesList, options: Map) -> Figure {
+        make_plot(x.0, y.0, Some(&options))
+    }
+
+    /// writes a figure as an SVG file (inside the analysis folder)
+    ///
+    /// path: relative to the analysis file; the folder must exist. As a method:
+    /// fig.save(path).
+    ///
+    /// example:
+    ///     plot([0, 1], [0, 1]).save("line.svg");
+    #[family = "plots"]
+    fn save(call, fig: Figure, path: String) -> () {
+        let Some(st) = state::of(call.ctx()) else {
+            return Err(call.fail("no session"));
+        };
+        let real = st.sandbox.write_path(&path).map_err(|m| call.fail(m))?;
+        let text = svg(&fig)?;
+        crate::safe_fs::write_file(&real, text.as_bytes(), false)
+            .map_err(|e| call.fail(format_args!("cannot write {path}: {e}")))
+    }
+}
 
 fn opt_bool(m: &Map, key: &str, fname: &str) -> Rr<Option<bool>> {
     match m.get(key) {
@@ -107,17 +161,17 @@ fn gap_vec(v: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<f64>> {
     Ok(y)
 }
 
-fn series_list(y: &Dynamic, fname: &str) -> Rr<Vec<Vec<f64>>> {
+fn series_list(y: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<Vec<f64>>> {
     if let Some(a) = y.read_lock::<Array>() {
         if a.first().is_some_and(|v| v.is_array()) {
             return a
                 .iter()
                 .enumerate()
-                .map(|(k, s)| gap_vec(s, fname, &format!("y[{k}]")))
+                .map(|(k, s)| gap_vec(s, fname, &format!("{arg}[{k}]")))
                 .collect();
         }
     }
-    Ok(vec![gap_vec(y, fname, "y")?])
+    Ok(vec![gap_vec(y, fname, arg)?])
 }
 
 fn labels(m: Option<&Map>, fname: &str) -> Rr<Vec<String>> {
@@ -133,10 +187,8 @@ fn labels(m: Option<&Map>, fname: &str) -> Rr<Vec<String>> {
         .collect()
 }
 
-fn make_plot(x: &Dynamic, y: &Dynamic, opts: Option<&Map>) -> Rr<Figure> {
+fn make_plot(x: Vec<f64>, ys: Vec<Vec<f64>>, opts: Option<&Map>) -> Rr<Figure> {
     let f = "plot";
-    let x = to_finite_vec(x, f, "x")?;
-    let ys = series_list(y, f)?;
     for (k, s) in ys.iter().enumerate() {
         if s.len() != x.len() {
             return Err(fail(format!(
@@ -213,36 +265,15 @@ pub fn svg(fig: &Figure) -> Rr<String> {
     fig.0.to_svg().map_err(|e| fail(format!("figure: {e}")))
 }
 
-/// Registers the figure built-ins.
+/// Registers `fig.add` (documented in `DOCS`); `plot` and `save` are declared in
+/// `BUILTINS`.
 pub fn register(engine: &mut Engine) {
-    engine.register_type_with_name::<Figure>("Figure");
-    engine.register_fn("plot", |x: Dynamic, y: Dynamic| make_plot(&x, &y, None));
-    engine.register_fn("plot", |x: Dynamic, y: Dynamic, o: Map| {
-        make_plot(&x, &y, Some(&o))
-    });
     engine.register_fn("add", |fig: &mut Figure, x: Dynamic, y: Dynamic| {
         add_series(fig, &x, &y, None)
     });
     engine.register_fn("add", |fig: &mut Figure, x: Dynamic, y: Dynamic, o: Map| {
         add_series(fig, &x, &y, Some(&o))
     });
-    engine.register_fn(
-        "save",
-        |ctx: NativeCallContext, fig: &mut Figure, path: Dynamic| -> Rr<()> {
-            let path = to_str(&path, "save", "path")?;
-            let Some(st) = state::of(&ctx) else {
-                return Err(fail("save: no session"));
-            };
-            let real = st
-                .sandbox
-                .write_path(&path)
-                .map_err(|m| fail(format!("save: {m}")))?;
-            let text = svg(fig)?;
-            crate::safe_fs::write_file(&real, text.as_bytes(), false)
-                .map_err(|e| fail(format!("save: cannot write {path}: {e}")))
-        },
-    );
-    engine.register_fn("to_string", |fig: &mut Figure| describe(fig));
 }
 
 /// One line describing a figure (for print and the terminal transcript).
@@ -273,11 +304,15 @@ mod tests {
     fn infinities_are_gaps_and_nan_is_refused() {
         let x = arr(&[0.0, 1.0, 2.0, 3.0, 4.0, 5.0]);
         let y = arr(&[0.0, 1.0, f64::INFINITY, 2.0, 3.0, f64::NEG_INFINITY]);
-        let fig = make_plot(&x, &y, None).expect("inf is a gap");
+        let plot = |y: &Dynamic| {
+            let x = to_finite_vec(&x, "plot", "x")?;
+            make_plot(x, series_list(y, "plot", "y")?, None)
+        };
+        let fig = plot(&y).expect("inf is a gap");
         let svg = fig.0.to_svg().expect("renders");
         // [0, 1] and [2, 3] are drawn, the infinities are not.
         assert_eq!(svg.matches("<polyline").count(), 2);
-        let e = make_plot(&x, &arr(&[0.0, f64::NAN, 1.0, 2.0, 3.0, 4.0]), None)
+        let e = plot(&arr(&[0.0, f64::NAN, 1.0, 2.0, 3.0, 4.0]))
             .err()
             .map(|e| e.to_string())
             .unwrap_or_default();

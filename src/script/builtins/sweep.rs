@@ -1,64 +1,19 @@
-//! Parameter-study built-ins: `sweep`, `random_cases`, and the methods of the `Table` a
-//! sweep returns. The machinery (workers, grid, shards) is `script::sweep`; the sampling
+//! Parameter-study built-ins: `sweep` and `random_cases` (declared), and the methods and
+//! properties of the `Table` a sweep returns (registered by hand, documented in `DOCS`). The machinery (workers, grid, shards) is `script::sweep`; the sampling
 //! is `numeric::sampling`.
 
 use crate::numeric::sampling::{self, Distribution};
-use crate::script::convert::{fail, num, to_count, to_f64, to_str, type_name, Rr};
+use crate::script::convert::{fail, to_count, to_f64, to_str, type_name, Rr};
+use crate::script::declare::{Call, Param};
 use crate::script::docs::Doc;
 use crate::script::state;
 use crate::script::sweep::run::RunOptions;
 use crate::script::sweep::{self, Table};
 use rhai::{Array, Dynamic, Engine, FnPtr, Map, NativeCallContext, FLOAT, INT};
 
-/// Help entries of this file.
+/// The pages of the `Table` methods and properties, registered by hand in [`register`]
+/// (`sweep` and `random_cases` are declared in `BUILTINS`).
 pub const DOCS: &[Doc] = &[
-    Doc {
-        name: "sweep",
-        family: "parameter studies",
-        usage: "sweep(grid, f) → Table\nsweep(grid, f, options) → Table",
-        summary: "runs f on every case of a parameter grid, in parallel on all cores",
-        details: "grid: a map of parameter arrays — every combination, keys in sorted order, \
-                  the last key varying fastest (#{ a: [1, 2], b: [10, 20] } gives (1,10), \
-                  (1,20), (2,10), (2,20)); a value that is not an array is a fixed parameter — \
-                  or an array of parameter maps (the cases as given, e.g. from random_cases).\n\
-                  f: a function of one parameter map returning a map of results (another value \
-                  v counts as #{ value: v }): a function name, Fn(\"name\"), or a closure. \
-                  Each worker runs f in its own engine with the functions defined so far; a \
-                  closure's captured variables are copied into every case, so changing them \
-                  inside f changes nothing outside. f cannot see other variables of the \
-                  analysis: pass what it needs in the grid or capture it.\n\
-                  Results: a Table (columns: parameters, then results; one row per case, in \
-                  case order whatever the scheduling). A failing case is listed with its \
-                  parameters and error (a warning names the first) and the rest still run.\n\
-                  Text printed inside f goes to the case's log (table.logs), not the cell; \
-                  record inside f has no effect. Limits (operations, call depth) apply per \
-                  case. A progress bar appears on stderr for sweeps longer than half a second \
-                  when stderr is a terminal.\n\
-                  options: #{ parallel: true, threads: one per core, stop_on_error: false, \
-                  progress: true } — stop_on_error makes the first failure (the lowest case \
-                  index among the cases run) an error of the sweep.\n\
-                  With `statebook run FILE --shard K/N` each sweep runs only the cases whose \
-                  index i has i mod N = K − 1; see `statebook merge`.",
-        example: "fn plant_case(p) {\n  let sys = state_space([[0, 1], [-p.k, -p.c]], [[0], [1]], \
-                  [[1, 0]], 0);\n  #{ worst_damping: min(modes(sys).map(|m| m.damping)) }\n}\n\
-                  let t = sweep(#{ k: [1, 4, 9], c: [0.2, 0.4] }, plant_case);\n\
-                  t.column(\"worst_damping\")",
-    },
-    Doc {
-        name: "random_cases",
-        family: "parameter studies",
-        usage: "random_cases(spec, count, seed) → array of maps",
-        summary: "seeded Monte Carlo cases: uniform [low, high] or normal #{ mean, std }",
-        details: "spec: a map from parameter name to [low, high] (uniform), #{ mean, std } \
-                  (normal) or a number (fixed). count: number of cases. seed: an integer.\n\
-                  The same spec, count and seed give the same numbers on every run and machine \
-                  (xoshiro256** seeded by SplitMix64; normal by the polar method; only IEEE \
-                  basic operations, sqrt and a logarithm of our own). Each parameter has its \
-                  own stream, so adding a parameter leaves the others' samples unchanged, and \
-                  the first n cases of a larger count are the cases of count n.",
-        example: "let cases = random_cases(#{ k: [0.9, 1.1], m: #{ mean: 2.0, std: 0.05 } }, \
-                  500, 7);\ncases[0]",
-    },
     Doc {
         name: "Table",
         family: "parameter studies",
@@ -112,6 +67,72 @@ pub const DOCS: &[Doc] = &[
     },
 ];
 
+crate::builtins! {
+    /// runs f on every case of a parameter grid, in parallel on all cores
+    ///
+    /// grid: a map of parameter arrays — every combination, keys in sorted order, the last
+    /// key varying fastest (#{ a: [1, 2], b: [10, 20] } gives (1,10), (1,20), (2,10),
+    /// (2,20)); a value that is not an array is a fixed parameter — or an array of
+    /// parameter maps (the cases as given, e.g. from random_cases).
+    ///
+    /// f: a function of one parameter map returning a map of results (another value v
+    /// counts as #{ value: v }): a function name, Fn("name"), or a closure. Each worker
+    /// runs f in its own engine with the functions defined so far; a closure's captured
+    /// variables are copied into every case, so changing them inside f changes nothing
+    /// outside. f cannot see other variables of the analysis: pass what it needs in the
+    /// grid or capture it.
+    ///
+    /// Results: a Table (columns: parameters, then results; one row per case, in case
+    /// order whatever the scheduling). A failing case is listed with its parameters and
+    /// error (a warning names the first) and the rest still run.
+    ///
+    /// Text printed inside f goes to the case's log (table.logs), not the cell; record
+    /// inside f has no effect. Limits (operations, call depth) apply per case. A progress
+    /// bar appears on stderr for sweeps longer than half a second when stderr is a
+    /// terminal.
+    ///
+    /// options: #{ parallel: true, threads: one per core, stop_on_error: false, progress:
+    /// true } — stop_on_error makes the first failure (the lowest case index among the
+    /// cases run) an error of the sweep.
+    ///
+    /// With `statebook run FILE --shard K/N` each sweep runs only the cases whose index i
+    /// has i mod N = K − 1; see `statebook merge`.
+    ///
+    /// example:
+    ///     fn plant_case(p) {
+    ///       let sys = state_space([[0, 1], [-p.k, -p.c]], [[0], [1]], [[1, 0]], 0);
+    ///       #{ worst_damping: min(modes(sys).map(|m| m.damping)) }
+    ///     }
+    ///     let t = sweep(#{ k: [1, 4, 9], c: [0.2, 0.4] }, plant_case);
+    ///     t.column("worst_damping")
+    #[family = "parameter studies"]
+    fn sweep(call, grid: Dynamic, f: CaseFunction) -> Table {
+        run_sweep(&call, &grid, f, &Map::new())
+    }
+    fn sweep(call, grid: Dynamic, f: CaseFunction, options: Map) -> Table {
+        run_sweep(&call, &grid, f, &options)
+    }
+
+    /// seeded Monte Carlo cases: uniform [low, high] or normal #{ mean, std }
+    ///
+    /// spec: a map from parameter name to [low, high] (uniform), #{ mean, std } (normal) or
+    /// a number (fixed). count: number of cases. seed: an integer.
+    ///
+    /// The same spec, count and seed give the same numbers on every run and machine
+    /// (xoshiro256** seeded by SplitMix64; normal by the polar method; only IEEE basic
+    /// operations, sqrt and a logarithm of our own). Each parameter has its own stream, so
+    /// adding a parameter leaves the others' samples unchanged, and the first n cases of a
+    /// larger count are the cases of count n.
+    ///
+    /// example:
+    ///     let cases = random_cases(#{ k: [0.9, 1.1], m: #{ mean: 2.0, std: 0.05 } }, 500, 7);
+    ///     cases[0]
+    #[family = "parameter studies"]
+    fn random_cases(call, spec: Map, count: usize, seed: Seed) -> Array as "array of maps" {
+        random_cases(&call, &spec, count, seed.0)
+    }
+}
+
 fn opt_bool(m: &Map, key: &str) -> Rr<Option<bool>> {
     match m.get(key) {
         None => Ok(None),
@@ -153,26 +174,49 @@ fn run_options(m: &Map) -> Rr<RunOptions> {
     })
 }
 
-fn case_function(f: &Dynamic) -> Rr<FnPtr> {
-    if let Some(p) = crate::script::convert::as_fnptr(f) {
-        return Ok(p);
+/// The function a sweep runs on each case: a closure, `Fn("name")` or a function name.
+struct CaseFunction(FnPtr);
+
+impl Param for CaseFunction {
+    const KIND: &'static str = "function";
+    fn from_arg(f: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        if let Some(p) = crate::script::convert::as_fnptr(&f) {
+            return Ok(CaseFunction(p));
+        }
+        if f.is_string() {
+            return FnPtr::new(f.to_string())
+                .map(CaseFunction)
+                .map_err(|e| call.fail(format_args!("{arg}: {e}")));
+        }
+        Err(call.fail(format_args!(
+            "{arg} must be a function (a name, Fn(\"name\") or a closure), found {}",
+            type_name(&f)
+        )))
     }
-    if f.is_string() {
-        return FnPtr::new(f.to_string()).map_err(|e| fail(format!("sweep: f: {e}")));
-    }
-    Err(fail(format!(
-        "sweep: f must be a function (a name, Fn(\"name\") or a closure), found {}",
-        type_name(f)
-    )))
 }
 
-fn run_sweep(ctx: &NativeCallContext, grid: &Dynamic, f: &Dynamic, opts: &Map) -> Rr<Table> {
-    let Some(st) = state::of(ctx) else {
-        return Err(fail("sweep: no session"));
+/// The seed of `random_cases`: an integer (a float, even a whole one, is refused so that
+/// a seed is never the result of arithmetic that may round).
+struct Seed(INT);
+
+impl Param for Seed {
+    const KIND: &'static str = "int";
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        v.as_int().map(Seed).map_err(|_| {
+            call.fail(format_args!(
+                "{arg} must be an integer, found {}",
+                type_name(&v)
+            ))
+        })
+    }
+}
+
+fn run_sweep(call: &Call, grid: &Dynamic, f: CaseFunction, opts: &Map) -> Rr<Table> {
+    let Some(st) = state::of(call.ctx()) else {
+        return Err(call.fail("no session"));
     };
-    let f = case_function(f)?;
     let opts = run_options(opts)?;
-    sweep::sweep(&st, grid, f, &opts)
+    sweep::sweep(&st, grid, f.0, &opts)
 }
 
 fn distribution(name: &str, v: &Dynamic) -> Rr<Option<Distribution>> {
@@ -218,39 +262,20 @@ fn distribution(name: &str, v: &Dynamic) -> Rr<Option<Distribution>> {
     )))
 }
 
-fn random_cases(
-    ctx: &NativeCallContext,
-    spec: &Dynamic,
-    count: &Dynamic,
-    seed: &Dynamic,
-) -> Rr<Array> {
-    let f = "random_cases";
-    let Some(spec) = spec.read_lock::<Map>() else {
-        return Err(fail(format!(
-            "random_cases: spec must be a map of parameters, found {}",
-            type_name(spec)
-        )));
-    };
-    let count = to_count(count, f, "count")?;
-    let limit = state::of(ctx)
+fn random_cases(call: &Call, spec: &Map, count: usize, seed: INT) -> Rr<Array> {
+    let limit = state::of(call.ctx())
         .map(|s| s.limits.array_size)
         .unwrap_or(usize::MAX);
     if count > limit {
-        return Err(fail(format!(
-            "random_cases: {count} cases exceed the array-size limit {limit}"
+        return Err(call.fail(format_args!(
+            "{count} cases exceed the array-size limit {limit}"
         )));
     }
-    let Ok(seed) = seed.as_int() else {
-        return Err(fail(format!(
-            "random_cases: seed must be an integer, found {}",
-            type_name(seed)
-        )));
-    };
     let mut columns: Vec<(String, Vec<Dynamic>)> = Vec::new();
     for (name, v) in spec.iter() {
         let values = match distribution(name, v)? {
             Some(d) => sampling::sample(d, name, count, seed as u64)
-                .map_err(num(f))?
+                .map_err(call.num())?
                 .into_iter()
                 .map(Dynamic::from_float)
                 .collect(),
@@ -319,24 +344,9 @@ fn names(v: &[String]) -> Array {
     v.iter().map(|s| Dynamic::from(s.clone())).collect()
 }
 
-/// Registers the parameter-study built-ins.
+/// Registers the methods and properties of a `Table` (documented in `DOCS`); `sweep` and
+/// `random_cases` are declared in `BUILTINS`.
 pub fn register(engine: &mut Engine) {
-    engine.register_type_with_name::<Table>("Table");
-    engine.register_fn(
-        "sweep",
-        |ctx: NativeCallContext, grid: Dynamic, f: Dynamic| run_sweep(&ctx, &grid, &f, &Map::new()),
-    );
-    engine.register_fn(
-        "sweep",
-        |ctx: NativeCallContext, grid: Dynamic, f: Dynamic, o: Map| run_sweep(&ctx, &grid, &f, &o),
-    );
-    engine.register_fn(
-        "random_cases",
-        |ctx: NativeCallContext, spec: Dynamic, count: Dynamic, seed: Dynamic| {
-            random_cases(&ctx, &spec, &count, &seed)
-        },
-    );
-
     engine.register_fn("column", |t: &mut Table, name: Dynamic| -> Rr<Array> {
         let name = to_str(&name, "column", "name")?;
         let j = column_of(t, &name, "column")?;
@@ -440,10 +450,4 @@ pub fn register(engine: &mut Engine) {
                 .map_err(|e| fail(format!("save_csv: cannot write {path}: {e}")))
         },
     );
-    engine.register_fn("to_string", |ctx: NativeCallContext, t: &mut Table| {
-        t.display(state::style(&ctx))
-    });
-    engine.register_fn("to_debug", |ctx: NativeCallContext, t: &mut Table| {
-        t.display(state::style(&ctx))
-    });
 }

@@ -584,8 +584,6 @@ pub fn register(engine: &mut Engine) {
             )),
         }
     });
-    engine.register_fn("to_string", |r: &mut Response| r.summary());
-    engine.register_fn("to_debug", |r: &mut Response| r.summary());
 }
 
 crate::builtins! {
