@@ -748,6 +748,55 @@ fn issue13_rigid_body_pole_is_at_the_origin_at_every_scale() {
     }
 }
 
+/// A rigid-body pole computed a rounding error to the left of the origin is no evidence of
+/// stability: `is_stable` is false at every state scaling (on main before this check a
+/// computed −1e−12 counted as stable), while a genuinely slow stable pole (τ = 1e7 s)
+/// beside a lightly damped fast pair stays stable at every scaling.
+#[test]
+fn is_stable_is_not_fooled_by_a_pole_at_rounding_distance_from_the_origin() {
+    use statebook::numeric::lti::properties::{is_stable, stability};
+    let sys = two_inertias();
+    let mut undecided = 0;
+    for s in scalings(4).into_iter().chain([vec![1.0; 4]]) {
+        let v = stability(&scaled(&sys, &s)).expect("stability");
+        assert!(!v.stable, "{s:?}: {v:?}");
+        if let Some(b) = v.undecided {
+            assert!(
+                b.value.re < 0.0 && b.value.norm() <= b.error,
+                "{s:?}: {b:?}"
+            );
+            undecided += 1;
+        }
+    }
+    // The drift of the computed pole must put it on the stable side at some scaling, or the
+    // check above could not fail on the old rule.
+    assert!(
+        undecided > 0,
+        "no scaling computed the rigid-body pole left of the origin"
+    );
+    let (wn, zeta) = (1e3, 1e-6);
+    let slow = siso(
+        &[
+            -1e-7,
+            0.0,
+            0.0, //
+            0.0,
+            0.0,
+            1.0, //
+            0.0,
+            -wn * wn,
+            -2.0 * zeta * wn,
+        ],
+        &[1.0, 0.0, 1.0],
+        &[1.0, 1.0, 0.0],
+    );
+    for s in scalings(3) {
+        let v = stability(&scaled(&slow, &s)).expect("stability");
+        assert!(v.stable && v.undecided.is_none(), "{s:?}: {v:?}");
+        assert!(is_stable(&scaled(&slow, &s)).expect("is_stable"));
+    }
+}
+
 /// Discrete: an integrator computed near z = 1 is listed at z = 1 (time constant inf),
 /// at every state scaling.
 #[test]

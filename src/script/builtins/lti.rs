@@ -326,13 +326,24 @@ crate::builtins! {
 
     /// every pole strictly in the left half plane (|z| < 1 when discrete)
     ///
-    /// Poles on the boundary (integrators, undamped modes) count as not stable.
+    /// Poles on the boundary (integrators, undamped modes) count as not stable, and so
+    /// does a pole within its own rounding error of the boundary, with a warning giving
+    /// the computed value and its error bound.
     ///
     /// example:
     ///     is_stable(plant)
     #[family = "models"]
     fn is_stable(call, sys: Model) -> bool {
-        properties::is_stable(&sys).map_err(call.num())
+        let s = properties::stability(&sys).map_err(call.num())?;
+        if let Some(b) = s.undecided {
+            call.warn(format_args!(
+                "the pole computed as {} lies within its rounding error (±{:.1e}) of the \
+                 stability boundary, so the model is not counted as stable",
+                crate::display::complex(b.value.re, b.value.im, crate::script::state::style(call.ctx())),
+                b.error,
+            ));
+        }
+        Ok(s.stable)
     }
 
     /// damping ratio, natural frequency (rad/s) and time constant (s) of each mode
