@@ -162,6 +162,36 @@ impl<'a, 'b> Call<'a, 'b> {
         super::state::warn(self.ctx, format!("{}: {message}", self.name));
     }
 
+    /// The sandboxed session behind the call (every file built-in needs one).
+    pub fn session(&self) -> Rr<std::sync::Arc<super::state::SessionState>> {
+        super::state::of(self.ctx).ok_or_else(|| self.fail("no session"))
+    }
+
+    /// Reads a text file at `path` (relative to the analysis file), judged by the session's
+    /// sandbox and bounded by its memory budget: the one read path of every file built-in.
+    pub fn read_text(&self, path: &str) -> Rr<String> {
+        let real = self
+            .session()?
+            .sandbox
+            .read_path(path)
+            .map_err(|e| self.fail(e))?;
+        crate::budget::read_bounded(&real)
+            .map_err(|e| self.fail(format_args!("cannot read {path}: {e}")))
+    }
+
+    /// Writes `bytes` to `path`, judged by the session's sandbox, through an exclusive
+    /// temporary in the target folder and a rename: the one write path of every file
+    /// built-in.
+    pub fn write_file(&self, path: &str, bytes: &[u8]) -> Rr<()> {
+        let real = self
+            .session()?
+            .sandbox
+            .write_path(path)
+            .map_err(|e| self.fail(e))?;
+        crate::safe_fs::write_file(&real, bytes, false)
+            .map_err(|e| self.fail(format_args!("cannot write {path}: {e}")))
+    }
+
     /// A number argument.
     pub fn number(&self, v: &Dynamic, arg: &str) -> Rr<f64> {
         convert::to_f64(v, self.name, arg)

@@ -70,31 +70,6 @@ pub(crate) fn real_schur(a: &DMatrix<f64>) -> NumResult<(DMatrix<f64>, DMatrix<f
     Ok((s.q, s.t, blocks))
 }
 
-/// Eigenvalue(s) of a diagonal block: λ (1×1) or θ + iμ with μ > 0 (2×2).
-pub(crate) fn block_eigenvalue(t: &DMatrix<f64>, b: Block) -> Complex<f64> {
-    let i = b.start;
-    if b.size == 1 {
-        return Complex::new(t[(i, i)], 0.0);
-    }
-    let (e, [a11, a12, a21, a22]) = scaled_block(t, i);
-    let p = 0.5 * a11 - 0.5 * a22;
-    let mu = (-(p * p + a12 * a21)).max(0.0).sqrt();
-    Complex::new(times_pow2(0.5 * a11 + 0.5 * a22, e), times_pow2(mu, e))
-}
-
-/// The 2×2 block at (i, i) divided by 2^e, e the exponent of its largest entry, so that
-/// products of entries neither overflow nor underflow: (e, [t₁₁, t₁₂, t₂₁, t₂₂]/2^e).
-fn scaled_block(t: &DMatrix<f64>, i: usize) -> (i32, [f64; 4]) {
-    let v = [t[(i, i)], t[(i, i + 1)], t[(i + 1, i)], t[(i + 1, i + 1)]];
-    let amax = v.iter().fold(0.0f64, |m, x| m.max(x.abs()));
-    let e = if amax > 0.0 {
-        amax.log2().floor() as i32
-    } else {
-        0
-    };
-    (e, v.map(|x| times_pow2(x, -e)))
-}
-
 /// Eigenvalues of a finite square matrix from its real Schur form (after optional
 /// balancing), with complex ones in exact conjugate pairs θ ± iμ, in block order.
 pub(crate) fn schur_eigenvalues(a: &DMatrix<f64>, balance: bool) -> NumResult<Vec<Complex<f64>>> {
@@ -106,7 +81,7 @@ pub(crate) fn schur_eigenvalues(a: &DMatrix<f64>, balance: bool) -> NumResult<Ve
     let (_, t, blocks) = real_schur(work.as_ref().unwrap_or(a))?;
     let mut out = Vec::with_capacity(a.nrows());
     for b in blocks {
-        let z = block_eigenvalue(&t, b);
+        let z = super::schur::block_eigenvalue(&t, b.start, b.size);
         out.push(z);
         if b.size == 2 {
             out.push(z.conj());

@@ -12,8 +12,9 @@
 use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
 use crate::numeric::linalg::dense::balance_reducing_norm;
+use crate::numeric::linalg::schur::quasi_blocks;
 use crate::numeric::linalg::sylvester::{
-    fmt_complex, quasi_blocks, real_schur, MatrixEquationParams, EIGENVALUE_ROUNDING,
+    fmt_complex, real_schur, MatrixEquationParams, EIGENVALUE_ROUNDING,
 };
 use nalgebra::{Complex, DMatrix};
 

@@ -3,9 +3,9 @@
 use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
 use crate::numeric::linalg::dense::{
-    balance_reducing_norm, block_eigenvalue, frobenius_norm, real_schur, scale_exponent,
-    times_pow2, unbalance, Block,
+    balance_reducing_norm, frobenius_norm, real_schur, scale_exponent, times_pow2, unbalance, Block,
 };
+use crate::numeric::linalg::schur::block_eigenvalue;
 use nalgebra::{Complex, DMatrix};
 
 /// Options of [`logm_with`] and [`negative_real_axis_eigenvalue`].
@@ -70,7 +70,7 @@ fn obstacle(
     let e = scale_exponent(t);
     let zero_level = n as f64 * f64::EPSILON * frobenius_norm(&t.map(|v| times_pow2(v, -e)));
     for &b in blocks {
-        let z = block_eigenvalue(t, b);
+        let z = block_eigenvalue(t, b.start, b.size);
         if times_pow2(z.re, -e).hypot(times_pow2(z.im, -e)) <= zero_level {
             return Some((z, true));
         }
@@ -124,7 +124,7 @@ fn sqrt_block(t: &DMatrix<f64>, b: Block) -> DMatrix<f64> {
     if b.size == 1 {
         return DMatrix::from_element(1, 1, t[(i, i)].sqrt());
     }
-    let z = block_eigenvalue(t, b);
+    let z = block_eigenvalue(t, b.start, b.size);
     let modulus = z.re.hypot(z.im);
     let alpha = if z.re >= 0.0 {
         (0.5 * (modulus + z.re)).sqrt()
@@ -245,7 +245,7 @@ fn log_block(t: &DMatrix<f64>, b: Block) -> DMatrix<f64> {
     if b.size == 1 {
         return DMatrix::from_element(1, 1, t[(i, i)].ln());
     }
-    let z = block_eigenvalue(t, b);
+    let z = block_eigenvalue(t, b.start, b.size);
     let ln_mod = z.re.hypot(z.im).ln();
     let factor = z.im.atan2(z.re) / z.im;
     let mut l = t.view((i, i), (2, 2)) * factor;

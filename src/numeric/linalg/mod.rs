@@ -9,5 +9,6 @@ pub mod logm;
 pub mod ops;
 pub mod poly;
 pub mod qz;
+pub(crate) mod reflector;
 pub mod schur;
 pub mod sylvester;

@@ -15,6 +15,7 @@
 //! eigenvalue problems", SIAM J. Numer. Anal. 10(2), 241–256; presentation and notation as in
 //! Golub, G. H. & Van Loan, C. F. (1996), *Matrix Computations*, 3rd ed., § 7.7.
 
+use super::reflector::{givens, larfg};
 use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
 use crate::numeric::order;
@@ -316,33 +317,13 @@ fn power_of_two_near(x: f64) -> f64 {
     2.0f64.powi(e)
 }
 
-/// (c, s) with `c·f + s·g = r`, `−s·f + c·g = 0`, c² + s² = 1.
-fn givens(f: f64, g: f64) -> (f64, f64) {
-    if g == 0.0 {
-        (1.0, 0.0)
-    } else if f == 0.0 {
-        (0.0, 1.0)
-    } else {
-        let r = f.hypot(g);
-        (f / r, g / r)
-    }
-}
-
-/// Householder reflector P = I − τ v vᵀ (v₀ = 1) with P x = β e₁.
+/// Householder reflector P = I − τ v vᵀ (v₀ = 1) with P x = β e₁, as `(v, τ, β)`
+/// ([`larfg`]).
 fn householder(x: &[f64]) -> (Vec<f64>, f64, f64) {
-    let alpha = x[0];
-    let xnorm = x[1..].iter().fold(0.0f64, |acc, v| acc.hypot(*v));
-    let mut v = vec![0.0; x.len()];
+    let mut v = x.to_vec();
+    let tau = larfg(&mut v);
+    let beta = v[0];
     v[0] = 1.0;
-    if xnorm == 0.0 {
-        return (v, 0.0, alpha);
-    }
-    let beta = -alpha.signum() * alpha.hypot(xnorm);
-    let tau = (beta - alpha) / beta;
-    let scale = 1.0 / (alpha - beta);
-    for (vi, xi) in v[1..].iter_mut().zip(&x[1..]) {
-        *vi = xi * scale;
-    }
     (v, tau, beta)
 }
 

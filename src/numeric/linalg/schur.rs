@@ -14,6 +14,7 @@
 //! - The 2×2 standardisation follows the method of LAPACK's `dlanv2`; the swaps follow its
 //!   `dlaexc`/`dtrsen`.
 
+use super::reflector::{larfg, sign};
 use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
 use nalgebra::{Complex, DMatrix};
@@ -204,34 +205,19 @@ impl RealSchur {
         let t = &self.t;
         let mut out = Vec::with_capacity(t.nrows());
         for (k, size) in self.blocks() {
-            if size == 1 {
-                out.push(Complex::new(t[(k, k)], 0.0));
-            } else {
-                let s = lanv2(t[(k, k)], t[(k, k + 1)], t[(k + 1, k)], t[(k + 1, k + 1)]);
-                out.push(s.rt1);
-                out.push(s.rt2);
+            let (z1, z2) = block_eigenvalues(t, k, size);
+            out.push(z1);
+            if size == 2 {
+                out.push(z2);
             }
         }
         out
     }
 
-    /// The diagonal blocks of `T` as `(start, size)` with size 1 or 2, top to bottom.
-    /// A block of size 2 is one with a non-zero subdiagonal entry. Cost O(n).
+    /// The diagonal blocks of `T` as `(start, size)` with size 1 or 2, top to bottom
+    /// ([`diagonal_blocks`]). Cost O(n).
     pub fn blocks(&self) -> Vec<(usize, usize)> {
-        let t = &self.t;
-        let n = t.nrows().min(t.ncols());
-        let mut out = Vec::new();
-        let mut k = 0;
-        while k < n {
-            if k + 1 < n && t[(k + 1, k)] != 0.0 {
-                out.push((k, 2));
-                k += 2;
-            } else {
-                out.push((k, 1));
-                k += 1;
-            }
-        }
-        out
+        diagonal_blocks(&self.t)
     }
 
     /// Reorders the decomposition so that every selected eigenvalue lies in the leading
@@ -454,7 +440,7 @@ fn francis_qr(
                         *vr = h[(k + r, k - 1)];
                     }
                 }
-                let t1 = larfg(nr, &mut v);
+                let t1 = larfg(&mut v[..nr]);
                 if k > m {
                     h[(k, k - 1)] = v[0];
                     h[(k + 1, k - 1)] = 0.0;
@@ -604,59 +590,6 @@ fn reflect2_cols(data: &mut [f64], nrows: usize, k: usize, rows: Range<usize>, r
     reflect2_slices(&mut c0[rows.clone()], &mut c1[rows], [v2, t1, t2]);
 }
 
-/// Elementary reflector `I − τ·u·uᵀ`, `u = (1, v[1..nr])`, mapping `v[0..nr]` to
-/// `(β, 0, …)` (LAPACK's `dlarfg`). Overwrites `v[0]` with β and `v[1..nr]` with the tail
-/// of `u`; returns τ.
-fn larfg(nr: usize, v: &mut [f64; 3]) -> f64 {
-    if nr < 2 {
-        return 0.0;
-    }
-    let norm_tail = |v: &[f64; 3]| v[1..nr].iter().fold(0.0f64, |s, x| s.hypot(*x));
-    // Entries within 2^±500: plain square roots of sums of squares cannot overflow or
-    // underflow, and cost far less than `hypot` (which guards the general case).
-    let amax = v[..nr].iter().fold(0.0f64, |m, x| m.max(x.abs()));
-    let safe = (2f64.powi(-500)..=2f64.powi(500)).contains(&amax);
-    let mut xnorm = if safe {
-        v[1..nr].iter().map(|x| x * x).sum::<f64>().sqrt()
-    } else {
-        norm_tail(v)
-    };
-    if xnorm == 0.0 {
-        return 0.0;
-    }
-    let mut alpha = v[0];
-    let mut beta = if safe {
-        -sign((alpha * alpha + xnorm * xnorm).sqrt(), alpha)
-    } else {
-        -sign(alpha.hypot(xnorm), alpha)
-    };
-    let safmin = f64::MIN_POSITIVE / (0.5 * f64::EPSILON);
-    let rsafmn = 1.0 / safmin;
-    let mut knt = 0;
-    if beta.abs() < safmin {
-        while beta.abs() < safmin && knt < 20 {
-            knt += 1;
-            for x in v[1..nr].iter_mut() {
-                *x *= rsafmn;
-            }
-            beta *= rsafmn;
-            alpha *= rsafmn;
-        }
-        xnorm = norm_tail(v);
-        beta = -sign(alpha.hypot(xnorm), alpha);
-    }
-    let tau = (beta - alpha) / beta;
-    let scal = 1.0 / (alpha - beta);
-    for x in v[1..nr].iter_mut() {
-        *x *= scal;
-    }
-    for _ in 0..knt {
-        beta *= safmin;
-    }
-    v[0] = beta;
-    tau
-}
-
 /// Zeroes every entry below the first subdiagonal (the QR iteration leaves them at zero in
 /// exact arithmetic).
 fn clean_below_quasi_diagonal(t: &mut DMatrix<f64>) {
@@ -700,9 +633,65 @@ struct Standard2 {
     rt2: Complex<f64>,
 }
 
-/// Fortran's SIGN(x, y): |x| with the sign of y.
-fn sign(x: f64, y: f64) -> f64 {
-    x.abs().copysign(y)
+/// The diagonal blocks of an upper quasi-triangular `t` as `(start, size)`, size 1 or 2,
+/// top to bottom: a block of size 2 starts where the subdiagonal entry is non-zero. The one
+/// block listing of the crate (Schur, Lyapunov, Sylvester, logm, modal forms). Cost O(n).
+pub(crate) fn diagonal_blocks(t: &DMatrix<f64>) -> Vec<(usize, usize)> {
+    let n = t.nrows().min(t.ncols());
+    let mut out = Vec::new();
+    let mut k = 0;
+    while k < n {
+        if k + 1 < n && t[(k + 1, k)] != 0.0 {
+            out.push((k, 2));
+            k += 2;
+        } else {
+            out.push((k, 1));
+            k += 1;
+        }
+    }
+    out
+}
+
+/// [`diagonal_blocks`] of a matrix that must be in real Schur form: fails with
+/// [`NumError::NoConvergence`] when two consecutive subdiagonal entries are non-zero (a
+/// diagonal block larger than 2×2 remained).
+pub(crate) fn quasi_blocks(t: &DMatrix<f64>) -> NumResult<Vec<(usize, usize)>> {
+    let blocks = diagonal_blocks(t);
+    let n = t.nrows().min(t.ncols());
+    if blocks
+        .iter()
+        .any(|&(k, size)| size == 2 && k + 2 < n && t[(k + 2, k + 1)] != 0.0)
+    {
+        return Err(NumError::NoConvergence {
+            what: "real Schur decomposition (a diagonal block larger than 2×2 remained)"
+                .to_string(),
+            iterations: 0,
+        });
+    }
+    Ok(blocks)
+}
+
+/// The eigenvalues of the diagonal block of `t` at `(start, size)`: the entry of a 1×1
+/// block; for a 2×2 block the pair of its standard form ([`lanv2`], LAPACK's `dlanv2`,
+/// computed without overflow), the one with non-negative imaginary part first.
+pub(crate) fn block_eigenvalues(
+    t: &DMatrix<f64>,
+    start: usize,
+    size: usize,
+) -> (Complex<f64>, Complex<f64>) {
+    let k = start;
+    if size == 1 {
+        let z = Complex::new(t[(k, k)], 0.0);
+        return (z, z);
+    }
+    let s = lanv2(t[(k, k)], t[(k, k + 1)], t[(k + 1, k)], t[(k + 1, k + 1)]);
+    (s.rt1, s.rt2)
+}
+
+/// One eigenvalue of the diagonal block at `(start, size)`: the first of
+/// [`block_eigenvalues`] (for a complex pair, the member with positive imaginary part).
+pub(crate) fn block_eigenvalue(t: &DMatrix<f64>, start: usize, size: usize) -> Complex<f64> {
+    block_eigenvalues(t, start, size).0
 }
 
 /// Schur factorisation of a real 2×2 matrix in standard form, by the method of LAPACK's

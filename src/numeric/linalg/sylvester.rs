@@ -21,7 +21,7 @@
 use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
 use crate::numeric::linalg::kernels;
-use crate::numeric::linalg::schur::{RealSchur, SchurParams};
+use crate::numeric::linalg::schur::{block_eigenvalue, quasi_blocks, RealSchur, SchurParams};
 use nalgebra::{Complex, DMatrix};
 
 /// Tolerances of the matrix-equation solvers (this file and
@@ -377,50 +377,6 @@ pub(crate) fn real_schur(
     check::finite(what, &t)?;
     check::finite(what, &q)?;
     Ok((q, t))
-}
-
-/// The diagonal blocks of an upper quasi-triangular matrix as `(start, size)`, size 1 or 2.
-///
-/// Fails with [`NumError::NoConvergence`] when two consecutive subdiagonal entries are
-/// non-zero (the matrix is not in real Schur form).
-pub(crate) fn quasi_blocks(t: &DMatrix<f64>) -> NumResult<Vec<(usize, usize)>> {
-    let n = t.nrows();
-    let mut blocks = Vec::with_capacity(n);
-    let mut i = 0;
-    while i < n {
-        if i + 1 < n && t[(i + 1, i)] != 0.0 {
-            if i + 2 < n && t[(i + 2, i + 1)] != 0.0 {
-                return Err(NumError::NoConvergence {
-                    what: "real Schur decomposition (a diagonal block larger than 2×2 remained)"
-                        .to_string(),
-                    iterations: 0,
-                });
-            }
-            blocks.push((i, 2));
-            i += 2;
-        } else {
-            blocks.push((i, 1));
-            i += 1;
-        }
-    }
-    Ok(blocks)
-}
-
-/// One eigenvalue of the diagonal block of `t` at `(start, size)` (the one with
-/// non-negative imaginary part for a 2×2 block).
-pub(crate) fn block_eigenvalue(t: &DMatrix<f64>, start: usize, size: usize) -> Complex<f64> {
-    if size == 1 {
-        return Complex::new(t[(start, start)], 0.0);
-    }
-    let (a, b) = (t[(start, start)], t[(start, start + 1)]);
-    let (c, d) = (t[(start + 1, start)], t[(start + 1, start + 1)]);
-    let mean = 0.5 * (a + d);
-    let disc = 0.25 * (a - d) * (a - d) + b * c;
-    if disc >= 0.0 {
-        Complex::new(mean + disc.sqrt(), 0.0)
-    } else {
-        Complex::new(mean, (-disc).sqrt())
-    }
 }
 
 /// Solves `S Z + Z R = G` (continuous) or `S Z R − Z = G` (discrete) for upper

@@ -18,9 +18,9 @@ use crate::numeric::error::{NumError, NumResult};
 use crate::numeric::linalg::hammarling::{
     lyapunov_cholesky_discrete_with, lyapunov_cholesky_with, stability_violation,
 };
+use crate::numeric::linalg::schur::{block_eigenvalue, quasi_blocks};
 use crate::numeric::linalg::sylvester::{
-    block_eigenvalue, quasi_blocks, real_schur, solve_lyapunov_discrete_with, solve_lyapunov_with,
-    MatrixEquationParams,
+    real_schur, solve_lyapunov_discrete_with, solve_lyapunov_with, MatrixEquationParams,
 };
 use nalgebra::{Complex, DMatrix, SVD};
 

@@ -11,7 +11,7 @@
 
 use super::system::StateSpace;
 use super::transform::{condition_warning, rcond};
-use crate::numeric::linalg::schur::RealSchur;
+use crate::numeric::linalg::schur::{block_eigenvalue, RealSchur};
 use crate::numeric::linalg::sylvester::solve_sylvester;
 use crate::numeric::{NumError, NumResult};
 use nalgebra::{Complex, DMatrix};
@@ -49,16 +49,6 @@ fn stateless(sys: &StateSpace) -> Modal {
         condition: 1.0,
         blocks: Vec::new(),
         warnings: Vec::new(),
-    }
-}
-
-fn block_eigenvalue(t: &DMatrix<f64>, s: usize, size: usize) -> Complex<f64> {
-    if size == 1 {
-        Complex::new(t[(s, s)], 0.0)
-    } else {
-        let a = t[(s, s)];
-        let w = (t[(s, s + 1)] * t[(s + 1, s)]).abs().sqrt();
-        Complex::new(a, w)
     }
 }
 

@@ -4,7 +4,6 @@
 
 use crate::script::convert::{matrix_value, to_str, Rr};
 use crate::script::declare::Call;
-use crate::script::state;
 use nalgebra::DMatrix;
 use rhai::{Array, Dynamic};
 
@@ -107,11 +106,6 @@ pub fn format_csv(m: &DMatrix<f64>, headers: Option<&[String]>) -> String {
     s
 }
 
-/// The sandboxed session behind a call (every file built-in needs one).
-fn session(call: &Call) -> Rr<std::sync::Arc<state::SessionState>> {
-    state::of(call.ctx()).ok_or_else(|| call.fail("no session"))
-}
-
 fn write(call: &Call, path: String, m: DMatrix<f64>, headers: Option<Array>) -> Rr<()> {
     let headers: Option<Vec<String>> = match headers {
         None => None,
@@ -131,11 +125,7 @@ fn write(call: &Call, path: String, m: DMatrix<f64>, headers: Option<Array>) -> 
             Some(v)
         }
     };
-    let st = session(call)?;
-    let real = st.sandbox.write_path(&path).map_err(|e| call.fail(e))?;
-    let text = format_csv(&m, headers.as_deref());
-    crate::safe_fs::write_file(&real, text.as_bytes(), false)
-        .map_err(|e| call.fail(format_args!("cannot write {path}: {e}")))
+    call.write_file(&path, format_csv(&m, headers.as_deref()).as_bytes())
 }
 
 crate::builtins! {
@@ -150,12 +140,9 @@ crate::builtins! {
     ///     let data = read_csv("measured.csv");
     #[family = "output and files"]
     fn read_csv(call, path: String) -> Dynamic as "Matrix" {
-        let st = session(&call)?;
-        let real = st.sandbox.read_path(&path).map_err(|e| call.fail(e))?;
-        let text = crate::budget::read_bounded(&real)
-            .map_err(|e| call.fail(format_args!("cannot read {path}: {e}")))?;
+        let text = call.read_text(&path)?;
         let (_, m) = parse_csv(&text, &path).map_err(|e| call.fail(e))?;
-        let limit = st.limits.matrix_entries;
+        let limit = call.session()?.limits.matrix_entries;
         if m.len() > limit {
             return Err(call.fail(format_args!("{path} has more than {limit} entries")));
         }

@@ -4,7 +4,6 @@ use crate::plot::{Figure as PlotFigure, MarkerShape, PlotOptions, Series};
 use crate::script::convert::{fail, to_f64_vec, to_finite_vec, to_str, type_name, Rr};
 use crate::script::declare::{Call, Param};
 use crate::script::docs::Doc;
-use crate::script::state;
 use crate::script::types::Figure;
 use rhai::{Array, Dynamic, Engine, Map};
 
@@ -74,13 +73,7 @@ crate::builtins! {
     ///     plot([0, 1], [0, 1]).save("line.svg");
     #[family = "plots"]
     fn save(call, fig: Figure, path: String) -> () {
-        let Some(st) = state::of(call.ctx()) else {
-            return Err(call.fail("no session"));
-        };
-        let real = st.sandbox.write_path(&path).map_err(|m| call.fail(m))?;
-        let text = svg(&fig)?;
-        crate::safe_fs::write_file(&real, text.as_bytes(), false)
-            .map_err(|e| call.fail(format_args!("cannot write {path}: {e}")))
+        call.write_file(&path, svg(&fig)?.as_bytes())
     }
 }
 

@@ -439,15 +439,7 @@ pub fn register(engine: &mut Engine) {
         "save_csv",
         |ctx: NativeCallContext, t: &mut Table, path: Dynamic| -> Rr<()> {
             let path = to_str(&path, "save_csv", "path")?;
-            let Some(st) = state::of(&ctx) else {
-                return Err(fail("save_csv: no session"));
-            };
-            let real = st
-                .sandbox
-                .write_path(&path)
-                .map_err(|m| fail(format!("save_csv: {m}")))?;
-            crate::safe_fs::write_file(&real, t.to_csv().as_bytes(), false)
-                .map_err(|e| fail(format!("save_csv: cannot write {path}: {e}")))
+            Call::new(&ctx, "save_csv").write_file(&path, t.to_csv().as_bytes())
         },
     );
 }

@@ -5,7 +5,6 @@ use crate::numeric::lti::system::StateSpace;
 use crate::numeric::lti::tf::TransferFunction as Tf;
 use crate::script::convert::Rr;
 use crate::script::declare::Call;
-use crate::script::state;
 use crate::script::types::{System, TransferFunction};
 use rhai::Dynamic;
 use serde_json::{json, Value};
@@ -156,15 +155,10 @@ crate::builtins! {
     ///     save_model(plant, "plant.model.json");
     #[family = "output and files"]
     fn save_model(call, model: Dynamic, path: String) -> () {
-        let Some(st) = state::of(call.ctx()) else {
-            return Err(call.fail("no session"));
-        };
-        let real = st.sandbox.write_path(&path).map_err(|e| call.fail(e))?;
         let doc = encode(&call, &model)?;
         let mut text = serde_json::to_string_pretty(&doc).unwrap_or_default();
         text.push('\n');
-        crate::safe_fs::write_file(&real, text.as_bytes(), false)
-            .map_err(|e| call.fail(format_args!("cannot write {path}: {e}")))
+        call.write_file(&path, text.as_bytes())
     }
 
     /// reads a statebook JSON model file
@@ -176,12 +170,7 @@ crate::builtins! {
     ///     let p = load_model("plant.model.json");
     #[family = "output and files"]
     fn load_model(call, path: String) -> Dynamic as "System | TransferFunction" {
-        let Some(st) = state::of(call.ctx()) else {
-            return Err(call.fail("no session"));
-        };
-        let real = st.sandbox.read_path(&path).map_err(|e| call.fail(e))?;
-        let text = crate::budget::read_bounded(&real)
-            .map_err(|e| call.fail(format_args!("cannot read {path}: {e}")))?;
+        let text = call.read_text(&path)?;
         let v: Value = serde_json::from_str(&text)
             .map_err(|e| call.fail(format_args!("{path} is not valid JSON: {e}")))?;
         decode(&call, &v)
