@@ -2,6 +2,8 @@
 //!
 //! Expectations are comments in the file:
 //! - `//! expect-output: TEXT` — the run's transcript contains TEXT;
+//! - `//! expect-no-output: TEXT` — the run's transcript does not contain TEXT (a warning
+//!   that must stay quiet);
 //! - `//! expect-error: TEXT` — the run fails and its error contains TEXT;
 //! - `//! expect-error-line: N` — the error points at line N of the file.
 //!
@@ -68,6 +70,11 @@ fn check_file(path: &Path) -> Result<(), String> {
     for w in expectations(&text, "expect-output:") {
         if !transcript.contains(&w) {
             return Err(format!("output does not contain {w:?}:\n{transcript}"));
+        }
+    }
+    for w in expectations(&text, "expect-no-output:") {
+        if transcript.contains(&w) {
+            return Err(format!("output contains {w:?}:\n{transcript}"));
         }
     }
     Ok(())

@@ -9,7 +9,7 @@ use crate::numeric::lti::{
 use crate::script::convert::{
     check_entries, complex_array, float_array, matrix_value, system_value, to_str, Rr,
 };
-use crate::script::declare::{Call, Model, Param};
+use crate::script::declare::{Call, Finite, Model, Param};
 use crate::script::docs::Doc;
 use crate::script::state;
 use crate::script::types::{Complex, Matrix, System, TransferFunction};
@@ -157,6 +157,50 @@ fn mode_map(m: &properties::Mode) -> Map {
 
 fn realize_rcond(t: &DMatrix<f64>) -> f64 {
     transform::rcond(t).max(f64::MIN_POSITIVE)
+}
+
+/// The map of `minimal_realization`, warning when a removal changed the input–output
+/// behaviour.
+fn minimal_map(call: &Call, sys: &StateSpace, tol: Option<f64>) -> Rr<Map> {
+    let r = eqv::minimal_checked(sys, tol).map_err(call.num())?;
+    let k = &r.minimal;
+    if let Some(e) = &r.changed_behaviour {
+        let (what, m) = if k.uncontrollable_removed > 0 {
+            ("controllability", k.controllability)
+        } else {
+            ("observability", k.observability)
+        };
+        // A relative tolerance a decade below the dropped coupling keeps it.
+        let keep = 0.1 * m.largest_dropped / m.scale;
+        call.warn(format_args!(
+            "removing {} of {} states changes the input–output behaviour: the reduced \
+             model's Markov parameters differ by {:.1e} relative and its frequency response by \
+             {:.1e} ({:.1e} times the rounding-aware tolerance). The {what} staircase \
+             dropped a coupling of singular value {:.2e}, {:.1e} times the rank threshold \
+             {:.2e}: the model is close to, not at, a lower order. Keep the full model, or \
+             pass a smaller relative tolerance, e.g. minimal_realization(sys, {keep:.0e})",
+            k.removed,
+            sys.order(),
+            e.markov_error,
+            e.frequency_error,
+            e.margin,
+            m.largest_dropped,
+            m.largest_dropped / m.threshold,
+            m.threshold,
+        ));
+    }
+    let mut m = Map::new();
+    m.insert("system".into(), system_value(r.system));
+    m.insert("removed".into(), Dynamic::from_int(k.removed as INT));
+    m.insert(
+        "uncontrollable_removed".into(),
+        Dynamic::from_int(k.uncontrollable_removed as INT),
+    );
+    m.insert(
+        "unobservable_removed".into(),
+        Dynamic::from_int(k.unobservable_removed as INT),
+    );
+    Ok(m)
 }
 
 crate::builtins! {
@@ -517,8 +561,13 @@ crate::builtins! {
 
     /// removes uncontrollable and unobservable states (orthogonal staircase)
     ///
-    /// Controllability then observability staircase (Van Dooren 1981, Varga 1981); rank
-    /// decisions by SVD relative to ‖[A B]‖, never by powers of A.
+    /// Controllability then observability staircase (Van Dooren 1981, Varga 1981) on the
+    /// balanced model; rank decisions by SVD relative to ‖[A B]‖ (resp. ‖[A; C]‖), never
+    /// by powers of A. tolerance: the relative rank threshold (default √ε ≈ 1.5e-8).
+    /// Every removal is checked: when the reduced model's Markov parameters or frequency
+    /// response differ from the given model's beyond the data's rounding, a warning gives
+    /// the figures (the model is close to, not at, a lower order; a smaller tolerance
+    /// keeps the states).
     ///
     /// example:
     ///     minimal_realization(plant).removed
@@ -526,21 +575,10 @@ crate::builtins! {
     fn minimal_realization(call, sys: Model)
         -> Map as "#{ system, removed, uncontrollable_removed, unobservable_removed }"
     {
-        let r = staircase::minimal_realization(&sys.a, &sys.b, &sys.c, &sys.d, None)
-            .map_err(call.num())?;
-        let new = sys.with_matrices(r.a, r.b, r.c, r.d).map_err(call.num())?;
-        let mut m = Map::new();
-        m.insert("system".into(), system_value(new));
-        m.insert("removed".into(), Dynamic::from_int(r.removed as INT));
-        m.insert(
-            "uncontrollable_removed".into(),
-            Dynamic::from_int(r.uncontrollable_removed as INT),
-        );
-        m.insert(
-            "unobservable_removed".into(),
-            Dynamic::from_int(r.unobservable_removed as INT),
-        );
-        Ok(m)
+        minimal_map(&call, &sys, None)
+    }
+    fn minimal_realization(call, sys: Model, tolerance: Finite) -> Map {
+        minimal_map(&call, &sys, Some(tolerance.0))
     }
 
     /// coordinates that separate the four controllable/observable parts
