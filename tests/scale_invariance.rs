@@ -18,6 +18,7 @@ use nalgebra::{Complex, DMatrix};
 use statebook::numeric::freq::norms::{h2_norm, hinf_norm};
 use statebook::numeric::lti::balance::{balanced_truncation, hankel_singular_values};
 use statebook::numeric::lti::equivalence::{equivalence, find_transform};
+use statebook::numeric::lti::modal::modal_realization;
 use statebook::numeric::lti::properties::{dc_gain, poles};
 use statebook::numeric::lti::realize::from_transfer_function;
 use statebook::numeric::lti::staircase::{
@@ -814,4 +815,48 @@ fn discrete_integrator_is_at_z_one_at_every_scale() {
         assert_eq!(one.len(), 1, "{s:?}: {m:?}");
         assert_eq!(one[0].time_constant, f64::INFINITY);
     }
+}
+
+#[test]
+fn modal_realizations_of_scaled_models_keep_the_transfer_function() {
+    // Issue 13 (scale invariance): the modal basis was computed on the unbalanced A, so a
+    // model with states scaled 1e∓4 came back 1e-4 off in its Markov parameters. Each
+    // scaled copy's modal form must be equivalent to the unscaled model and show the same
+    // poles on its diagonal blocks (the rounding-aware equivalence verdict decides).
+    let mut rng = Rng(0x40da1);
+    let mut bad = Vec::new();
+    let total = 30;
+    for case in 0..total {
+        let n = 2 + case % 5;
+        let sys = random_stable(&mut rng, n, 1 + case % 2, 1);
+        let p0 = sorted_poles(&sys);
+        for (si, s) in scalings(n).iter().enumerate() {
+            let x = scaled(&sys, s);
+            let label = format!("case {case} (n = {n}), scaling {si}");
+            match modal_realization(&x) {
+                Ok(m) => {
+                    let e = equivalence(&sys, &m.system).expect("equivalence runs");
+                    if !e.equivalent {
+                        bad.push(format!("{label}: {}", e.reason));
+                    }
+                    let pm = sorted_poles(&m.system);
+                    let moved = p0
+                        .iter()
+                        .zip(&pm)
+                        .any(|(a, b)| (a - b).norm() > 1e-8 * (1.0 + a.norm()));
+                    if moved {
+                        bad.push(format!("{label}: poles {pm:?} vs {p0:?}"));
+                    }
+                }
+                Err(e) => bad.push(format!("{label}: {e}")),
+            }
+        }
+    }
+    assert!(
+        bad.is_empty(),
+        "{} of {} scaled modal forms changed:\n{}",
+        bad.len(),
+        total * 5,
+        bad.join("\n")
+    );
 }

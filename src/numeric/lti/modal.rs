@@ -9,8 +9,11 @@
 //! an ill-conditioned eigenvector matrix is never inverted. Each complex pair's block is
 //! finally scaled to `[[σ, ω], [−ω, σ]]` (ω > 0) and each block's columns normalised.
 
+use super::properties::snap;
 use super::system::StateSpace;
 use super::transform::{condition_warning, rcond};
+use crate::numeric::linalg::dense::balance_reducing_norm;
+use crate::numeric::linalg::eigen::eigenvalues_with_bounds;
 use crate::numeric::linalg::schur::{block_eigenvalue, RealSchur};
 use crate::numeric::linalg::sylvester::solve_sylvester;
 use crate::numeric::{NumError, NumResult};
@@ -160,6 +163,23 @@ fn decouple(a: &DMatrix<f64>) -> NumResult<Decoupled> {
     })
 }
 
+/// [`decouple`] on the Parlett–Reinsch balanced `D⁻¹AD` (D an exact power-of-two
+/// diagonal; Parlett & Reinsch 1969), with the basis brought back as `D·Y`: the modal basis
+/// of a model with badly scaled states is computed in balanced coordinates, so the
+/// realization keeps the transfer function whatever the units (unbalanced, states scaled
+/// 1e∓4 lost four digits of the Markov parameters).
+fn decouple_balanced(a: &DMatrix<f64>) -> NumResult<Decoupled> {
+    let Some((b, scale)) = balance_reducing_norm(a) else {
+        return decouple(a);
+    };
+    let mut d = decouple(&b)?;
+    for (i, s) in scale.iter().enumerate() {
+        let mut row = d.basis.row_mut(i);
+        row *= *s;
+    }
+    Ok(d)
+}
+
 /// Scales each block: a complex pair to `[[σ, ω], [−ω, σ]]`, then every block's columns
 /// to unit average norm. Returns the scaled block-diagonal matrix and basis.
 fn scale_blocks(d: &mut Decoupled) {
@@ -212,10 +232,11 @@ fn assemble(sys: &StateSpace, d: Decoupled, what: &str) -> NumResult<Modal> {
             }
         }
     }
+    let mut warnings = d.warnings;
+    onto_boundary(&mut a, &d.blocks, sys, what, &mut warnings)?;
     let mut system = sys.with_matrices(a, b, c, sys.d.clone())?;
     system.names.states.clear();
     let condition = if rc > 0.0 { 1.0 / rc } else { f64::INFINITY };
-    let mut warnings = d.warnings;
     warnings.extend(condition_warning(what, condition));
     Ok(Modal {
         system,
@@ -226,6 +247,72 @@ fn assemble(sys: &StateSpace, d: Decoupled, what: &str) -> NumResult<Modal> {
     })
 }
 
+/// Puts each 1×1 or standard 2×2 block whose eigenvalue lies within its own rounding error
+/// of the stability boundary exactly on it — the origin or the imaginary axis; z = 1, the
+/// origin or the unit circle when discrete — as [`super::properties::modes`] reports such
+/// poles, with a note giving the computed value and its bound. The bound is that of the
+/// nearest eigenvalue of the given `A` ([`eigenvalues_with_bounds`]), so the decision does
+/// not depend on the units of the states. The change is within rounding of the computed
+/// form: a rigid-body mode shows as 0, not as 6.8e-17.
+fn onto_boundary(
+    a: &mut DMatrix<f64>,
+    blocks: &[(usize, usize)],
+    sys: &StateSpace,
+    what: &str,
+    warnings: &mut Vec<String>,
+) -> NumResult<()> {
+    let bounded = eigenvalues_with_bounds(&sys.a)?;
+    for &(s, k) in blocks {
+        let z = match k {
+            1 => Complex::new(a[(s, s)], 0.0),
+            2 if a[(s, s)] == a[(s + 1, s + 1)] && a[(s, s + 1)] * a[(s + 1, s)] < 0.0 => {
+                Complex::new(a[(s, s)], (-a[(s, s + 1)] * a[(s + 1, s)]).sqrt())
+            }
+            _ => continue,
+        };
+        let Some(error) = bounded
+            .iter()
+            .min_by(|x, y| (x.value - z).norm().total_cmp(&(y.value - z).norm()))
+            .map(|x| x.error)
+        else {
+            continue;
+        };
+        let Some((on, boundary)) = snap(z, error, sys.is_discrete()) else {
+            continue;
+        };
+        if on == z {
+            continue;
+        }
+        if k == 1 {
+            a[(s, s)] = on.re;
+        } else if on.im != 0.0 {
+            // Keep the standard form [[σ, ω], [−ω, σ]] scaled onto the boundary point.
+            let f = on.im / z.im;
+            a[(s, s)] = on.re;
+            a[(s + 1, s + 1)] = on.re;
+            a[(s, s + 1)] *= f;
+            a[(s + 1, s)] *= f;
+        } else {
+            continue;
+        }
+        warnings.push(format!(
+            "{what}: the pole computed as {} lies within its rounding error (±{error:.1e}) of \
+             {}; the form shows it there",
+            fmt_pole(z),
+            boundary.describe()
+        ));
+    }
+    Ok(())
+}
+
+fn fmt_pole(z: Complex<f64>) -> String {
+    if z.im == 0.0 {
+        format!("{:e}", z.re)
+    } else {
+        format!("{:e}{:+e}j", z.re, z.im)
+    }
+}
+
 /// The modal realization: real poles on the diagonal, each complex pair as a 2×2 block
 /// `[[σ, ω], [−ω, σ]]`, blocks in the eigenvalue convention's order (ascending σ); a
 /// cluster of repeated or nearly repeated eigenvalues stays one coupled block (with a
@@ -234,7 +321,7 @@ pub fn modal_realization(sys: &StateSpace) -> NumResult<Modal> {
     if sys.order() == 0 {
         return Ok(stateless(sys));
     }
-    let mut d = decouple(&sys.a)?;
+    let mut d = decouple_balanced(&sys.a)?;
     scale_blocks(&mut d);
     assemble(sys, d, "modal_realization")
 }
@@ -249,7 +336,7 @@ pub fn jordan_realization(sys: &StateSpace) -> NumResult<Modal> {
     if sys.order() == 0 {
         return Ok(stateless(sys));
     }
-    let mut d = decouple(&sys.a)?;
+    let mut d = decouple_balanced(&sys.a)?;
     // Chains are read off the Schur blocks as they are: the standard-form scaling of a
     // 2×2 block (scale_blocks, applied at the end) would shrink the coupling of a nearly
     // defective pair to the size of its rounding-level imaginary part.
@@ -465,6 +552,71 @@ mod tests {
                 "Markov parameters differ: {p} vs {q}"
             );
         }
+    }
+
+    #[test]
+    fn a_rigid_body_pole_shows_exactly_at_the_origin_at_every_state_scaling() {
+        // Two inertias on a stiff shaft (invented): the absolute angle gives a pole at
+        // exactly 0 that the Schur form computes only to rounding level (5.6e-12 here).
+        // The modal form must show it as 0 with a note, whatever the state units, and keep
+        // the Markov parameters; a slow genuine pole (−1e-7) must stay where it is.
+        let k = 3.8e4;
+        let a = DMatrix::from_row_slice(
+            4,
+            4,
+            &[
+                0.0,
+                1.0,
+                0.0,
+                0.0,
+                -k / 1.2,
+                -40.0 / 1.2,
+                k / 1.2,
+                40.0 / 1.2,
+                0.0,
+                0.0,
+                0.0,
+                1.0,
+                k / 4.5,
+                40.0 / 4.5,
+                -k / 4.5,
+                -41.5 / 4.5,
+            ],
+        );
+        let b = DMatrix::from_column_slice(4, 1, &[0.0, 1.0 / 1.2, 0.0, 0.0]);
+        let c = DMatrix::from_row_slice(1, 4, &[0.0, 0.0, 0.0, 1.0]);
+        let sys = StateSpace::new(a, b, c, DMatrix::zeros(1, 1), 0.0).unwrap();
+        let mut noted = 0;
+        for e in [-4, -2, 0, 2, 4] {
+            let s = 10f64.powi(e);
+            let t = DMatrix::from_diagonal(&nalgebra::DVector::from_vec(vec![1.0, s, 1.0 / s, s]));
+            let scaled = crate::numeric::lti::transform::transform_state(&sys, &t)
+                .unwrap()
+                .0;
+            let m = modal_realization(&scaled).unwrap();
+            let d = m.system.a.diagonal();
+            let zeros = d.iter().filter(|&&x| x == 0.0).count();
+            assert_eq!(zeros, 1, "scaling 1e{e}: diagonal {d:?}");
+            noted += m
+                .warnings
+                .iter()
+                .filter(|w| w.contains("rounding error"))
+                .count();
+            let v = crate::numeric::lti::equivalence::equivalence(&scaled, &m.system).unwrap();
+            assert!(v.equivalent, "scaling 1e{e}: {}", v.reason);
+        }
+        assert!(noted >= 1, "a moved pole is noted");
+        let slow = StateSpace::new(
+            DMatrix::from_row_slice(2, 2, &[-1e-7, 0.0, 0.0, -2.0]),
+            DMatrix::from_element(2, 1, 1.0),
+            DMatrix::from_element(1, 2, 1.0),
+            DMatrix::zeros(1, 1),
+            0.0,
+        )
+        .unwrap();
+        let m = modal_realization(&slow).unwrap();
+        assert!(m.system.a.diagonal().iter().any(|&x| x == -1e-7));
+        assert!(m.warnings.is_empty());
     }
 
     #[test]

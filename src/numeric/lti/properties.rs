@@ -116,7 +116,11 @@ impl Boundary {
 /// The boundary point a computed pole is indistinguishable from, if any: within `error`
 /// of the origin, of the imaginary axis (continuous), of z = 1 or of the unit circle
 /// (discrete).
-fn snap(z: Complex<f64>, error: f64, discrete: bool) -> Option<(Complex<f64>, Boundary)> {
+pub(crate) fn snap(
+    z: Complex<f64>,
+    error: f64,
+    discrete: bool,
+) -> Option<(Complex<f64>, Boundary)> {
     let zero = Complex::new(0.0, 0.0);
     if z.norm() <= error {
         return Some((zero, Boundary::Origin));
