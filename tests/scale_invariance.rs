@@ -860,3 +860,81 @@ fn modal_realizations_of_scaled_models_keep_the_transfer_function() {
         bad.join("\n")
     );
 }
+
+#[test]
+fn every_change_of_coordinates_of_a_scaled_model_keeps_the_transfer_function() {
+    // Issue 13 (scale invariance) over every transform that returns a model: companion
+    // forms, balanced form, Kalman decomposition and the TF round trip, each on copies of
+    // seeded random models with states scaled 1e-6…1e6, must stay equivalent to the
+    // unscaled model — or refuse, never return another transfer function silently.
+    use statebook::numeric::lti::balance::balanced_realization;
+    use statebook::numeric::lti::realize::{
+        controllable_companion, observable_companion, to_transfer_function,
+    };
+    let mut rng = Rng(0x7a11);
+    let mut bad = Vec::new();
+    let total = 24;
+    for case in 0..total {
+        let n = 2 + case % 4;
+        let sys = random_stable(&mut rng, n, 1, 1);
+        for (si, s) in scalings(n).iter().enumerate() {
+            let x = scaled(&sys, s);
+            let label = format!("case {case} (n = {n}), scaling {si}");
+            let mut results: Vec<(&str, Result<StateSpace, String>)> = Vec::new();
+            results.push((
+                "controllable companion",
+                controllable_companion(&x)
+                    .map(|r| r.0)
+                    .map_err(|e| e.to_string()),
+            ));
+            results.push((
+                "observable companion",
+                observable_companion(&x)
+                    .map(|r| r.0)
+                    .map_err(|e| e.to_string()),
+            ));
+            results.push((
+                "balanced",
+                balanced_realization(&x.a, &x.b, &x.c, &x.d, 0.0)
+                    .map_err(|e| e.to_string())
+                    .and_then(|b| {
+                        x.with_matrices(b.a, b.b, b.c, b.d)
+                            .map_err(|e| e.to_string())
+                    }),
+            ));
+            results.push((
+                "kalman",
+                kalman_decomposition(&x.a, &x.b, &x.c, &x.d, None)
+                    .map_err(|e| e.to_string())
+                    .and_then(|k| {
+                        x.with_matrices(k.a, k.b, k.c, k.d)
+                            .map_err(|e| e.to_string())
+                    }),
+            ));
+            results.push((
+                "transfer function round trip",
+                to_transfer_function(&x)
+                    .map_err(|e| e.to_string())
+                    .and_then(|g| from_transfer_function(&g[0][0]).map_err(|e| e.to_string())),
+            ));
+            for (what, r) in results {
+                match r {
+                    Ok(m) => {
+                        let e = equivalence(&sys, &m).expect("equivalence runs");
+                        if !e.equivalent {
+                            bad.push(format!("{label}, {what}: {}", e.reason));
+                        }
+                    }
+                    Err(e) => bad.push(format!("{label}, {what}: refused: {e}")),
+                }
+            }
+        }
+    }
+    assert!(
+        bad.is_empty(),
+        "{} of {} transformed scaled models changed:\n{}",
+        bad.len(),
+        total * 5 * 5,
+        bad.join("\n")
+    );
+}

@@ -147,6 +147,33 @@ fn require_siso(sys: &StateSpace, what: &str) -> NumResult<()> {
     Ok(())
 }
 
+/// The reciprocal condition of a basis up to the units of the states: `rcond(D·t)` with
+/// `D` scaling each row (`rows`, for `x = T z`) or `rcond(t·D)` each column (for `z = S x`)
+/// to unit 2-norm by a power of two. A diagonal change of state units alone changes `T` by
+/// exactly such a `D`, and the companion form computed from it not at all, so neither the
+/// refusal nor the warning may depend on it (with states spread over 1e±6 the raw
+/// condition overflows to a refusal).
+fn rcond_up_to_state_units(t: &DMatrix<f64>, rows: bool) -> f64 {
+    let mut e = t.clone();
+    let n = if rows { e.nrows() } else { e.ncols() };
+    for k in 0..n {
+        let norm = if rows {
+            e.row(k).norm()
+        } else {
+            e.column(k).norm()
+        };
+        if norm > 0.0 && norm.is_finite() {
+            let f = 2f64.powi(-(norm.log2().round() as i32));
+            if rows {
+                e.row_mut(k).scale_mut(f);
+            } else {
+                e.column_mut(k).scale_mut(f);
+            }
+        }
+    }
+    rcond(&e)
+}
+
 /// The controllable companion realization of a SISO model and its `T` (x = T z).
 ///
 /// With the characteristic polynomial `sⁿ + a₁sⁿ⁻¹ + … + aₙ` (from a Hessenberg
@@ -171,8 +198,9 @@ pub fn controllable_companion(sys: &StateSpace) -> NumResult<(StateSpace, DMatri
     }
     // Controllability is decided by the balanced staircase (independent of the units of
     // the states), not by the conditioning of the Krylov basis, which a mere change of
-    // units can make as poor as one likes; that condition is returned for a warning.
-    let rc = rcond(&t);
+    // units can make as poor as one likes; its condition up to those units is returned
+    // for a warning.
+    let rc = rcond_up_to_state_units(&t, true);
     if !is_controllable(&sys.a, &sys.b, None)? || rc == 0.0 {
         return Err(NumError::no_solution(
             "controllable_realization",
@@ -216,7 +244,7 @@ pub fn observable_companion(sys: &StateSpace) -> NumResult<(StateSpace, DMatrix<
         }
     }
     // Decided by the balanced staircase, as in controllable_companion.
-    let rc = rcond(&s);
+    let rc = rcond_up_to_state_units(&s, false);
     if !is_observable(&sys.a, &sys.c, None)? || rc == 0.0 {
         return Err(NumError::no_solution(
             "observable_realization",
