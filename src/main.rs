@@ -357,7 +357,8 @@ fn cmd_render(file: &Path, output: Option<&Path>, markdown: bool, common: &Commo
         return 1;
     }
     let inputs = session.sandbox().files_read();
-    match check::write_outputs(file, output, markdown, &r, &session.records(), &inputs) {
+    match statebook::report::write_outputs(file, output, markdown, &r, &session.records(), &inputs)
+    {
         Ok(written) => {
             for w in written {
                 println!("wrote {}", w.display());

@@ -1,7 +1,7 @@
 //! Analysis files end to end: run, render, check, new, CSV, and path refusals.
 
-use statebook::notebook::output::Output;
 use statebook::notebook::{files, run};
+use statebook::script::output::Output;
 use statebook::{Session, SessionOptions};
 use std::path::Path;
 

@@ -14,7 +14,7 @@ fn session(limits: Limits) -> Session {
     })
 }
 
-fn error_of(s: &mut Session, code: &str) -> statebook::notebook::diagnostic::ScriptError {
+fn error_of(s: &mut Session, code: &str) -> statebook::script::diagnostic::ScriptError {
     match s.eval(code) {
         Ok(v) => panic!("expected an error from {code:?}, got {v:?}"),
         Err(e) => e,

@@ -1,8 +1,8 @@
 //! Parameter sweeps: determinism (serial vs parallel, shards vs one run), failures with
 //! their parameters, seeded sampling, and the function library seen by workers.
 
-use statebook::notebook::output::Output;
 use statebook::notebook::sweeps;
+use statebook::script::output::Output;
 use statebook::script::sweep::{Shard, SweepPlan};
 use statebook::{Session, SessionOptions};
 use std::path::PathBuf;

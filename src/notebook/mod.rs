@@ -2,7 +2,6 @@
 //! results file and the reproducibility check.
 
 pub mod check;
-pub mod diagnostic;
 pub mod files;
 pub mod output;
 pub mod parse;

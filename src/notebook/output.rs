@@ -3,27 +3,7 @@
 //! This is the hand-off between the runner (which fills it) and the writers of the
 //! terminal transcript and the reports (which only read it).
 
-/// One captured output of a cell, in the order it was produced.
-#[derive(Debug, Clone, PartialEq)]
-pub enum Output {
-    /// Text from `print`.
-    Text(String),
-    /// A value displayed by `show` or as the cell's last expression (already formatted).
-    Value(String),
-    /// Markdown prose from `note`.
-    Note(String),
-    /// A figure: its complete SVG document and an optional title.
-    Figure {
-        /// The SVG document (starts with `<svg`).
-        svg: String,
-        /// Figure title, if any (used for alt text and captions).
-        title: Option<String>,
-    },
-    /// A numerical-health warning (already worded, without the `warning:` prefix).
-    Warning(String),
-    /// The error that stopped the run, rendered with its position and source line.
-    Error(String),
-}
+use crate::script::output::Output;
 
 /// One cell after running.
 #[derive(Debug, Clone, PartialEq)]
@@ -70,4 +50,22 @@ pub struct NotebookRun {
     pub failed: bool,
     /// Provenance of the run.
     pub provenance: Provenance,
+}
+
+/// Starts the machine-readable comment that both report formats carry: the SHA-256 of the
+/// results file written with the report (read back by `check` to pair the two).
+pub const RUN_MARKER: &str = "<!-- statebook-results: ";
+
+/// The pairing comment for `run` (only its hexadecimal digits are kept).
+pub fn run_marker(run: &str) -> String {
+    let id: String = run.chars().filter(char::is_ascii_hexdigit).collect();
+    format!("{RUN_MARKER}{id} -->")
+}
+
+/// The results-file hash a report carries, if any.
+pub fn run_of_report(report: &str) -> Option<&str> {
+    let at = report.rfind(RUN_MARKER)? + RUN_MARKER.len();
+    let rest = &report[at..];
+    let end = rest.find(|c: char| !c.is_ascii_hexdigit())?;
+    Some(&rest[..end])
 }

@@ -1,9 +1,10 @@
 //! The cell runner: cells run in order in one session; each cell's outputs are captured
 //! in order; the run stops at the first failing cell.
 
-use super::diagnostic::ScriptError;
-use super::output::{CellRun, NotebookRun, Output, Provenance};
+use super::output::{CellRun, NotebookRun, Provenance};
 use super::parse::{parse, Document};
+use crate::script::diagnostic::ScriptError;
+use crate::script::output::Output;
 use crate::Session;
 
 /// Runs a parsed document in `session`. `file_name` is used in error locations; `source`

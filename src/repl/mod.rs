@@ -7,8 +7,8 @@
 mod complete;
 pub mod input;
 
-use crate::notebook::output::Output;
 use crate::notebook::session_log;
+use crate::script::output::Output;
 use crate::{Session, SessionOptions};
 use complete::ReplHelper;
 use input::{is_incomplete, Command};

@@ -11,7 +11,8 @@ use super::highlight::highlight;
 use super::prose::markdown_to_html;
 use super::{blocks, escape_html, failing_cell, inline_svg, is_empty, titles_document, Block};
 use super::{CAUTION, CAUTION_HEADING};
-use crate::notebook::output::{CellRun, NotebookRun, Output, Provenance};
+use crate::notebook::output::{CellRun, NotebookRun, Provenance};
+use crate::script::output::Output;
 
 /// The page's style sheet, embedded at build time.
 const STYLE: &str = include_str!("style.css");
@@ -242,7 +243,11 @@ fn push_provenance(page: &mut String, provenance: &Provenance) {
         let _ = writeln!(page, "<div><dt>{label}</dt><dd>{value}</dd></div>");
     }
     page.push_str("</dl>\n");
-    let _ = writeln!(page, "{}", super::run_marker(&provenance.results_sha256));
+    let _ = writeln!(
+        page,
+        "{}",
+        crate::notebook::output::run_marker(&provenance.results_sha256)
+    );
     page.push_str("</section>\n<section class=\"caution\">\n");
     let _ = writeln!(page, "<h2>{CAUTION_HEADING}</h2>");
     for paragraph in CAUTION {

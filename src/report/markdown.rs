@@ -11,7 +11,8 @@ use std::fmt::Write as _;
 
 use super::{blocks, failing_cell, figure_file_name, inline_svg, is_empty, titles_document, Block};
 use super::{CAUTION, CAUTION_HEADING};
-use crate::notebook::output::{CellRun, NotebookRun, Output};
+use crate::notebook::output::{CellRun, NotebookRun};
+use crate::script::output::Output;
 
 /// A Markdown report and the figure files it links to.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -143,7 +144,11 @@ fn push_provenance(text: &mut String, run: &NotebookRun) {
         "- Results SHA-256: {}\n",
         code_span(&p.results_sha256)
     );
-    let _ = writeln!(text, "{}\n", super::run_marker(&p.results_sha256));
+    let _ = writeln!(
+        text,
+        "{}\n",
+        crate::notebook::output::run_marker(&p.results_sha256)
+    );
     let _ = writeln!(text, "## {CAUTION_HEADING}\n");
     let paragraphs: Vec<&str> = CAUTION.to_vec();
     let _ = writeln!(text, "{}", paragraphs.join("\n\n"));

@@ -16,6 +16,8 @@
 mod highlight;
 mod html;
 mod markdown;
+mod pair;
+pub use pair::write_outputs;
 mod prose;
 #[cfg(test)]
 mod tests;
@@ -24,7 +26,8 @@ pub use html::render_html;
 pub use markdown::{render_markdown, MarkdownReport};
 pub use prose::sanitize_markdown;
 
-use crate::notebook::output::{CellRun, NotebookRun, Output};
+use crate::notebook::output::{CellRun, NotebookRun};
+use crate::script::output::Output;
 
 /// Heading of the closing caution, in both report formats.
 const CAUTION_HEADING: &str = "Before you rely on these results";
@@ -42,24 +45,6 @@ const CAUTION: [&str; 3] = [
      functional-safety standards and local codes that apply to the application, and have \
      the design reviewed and approved by a licensed professional engineer.",
 ];
-
-/// Starts the machine-readable comment that both report formats carry: the SHA-256 of the
-/// results file written with the report (read back by `check` to pair the two).
-pub const RUN_MARKER: &str = "<!-- statebook-results: ";
-
-/// The pairing comment for `run` (only its hexadecimal digits are kept).
-fn run_marker(run: &str) -> String {
-    let id: String = run.chars().filter(char::is_ascii_hexdigit).collect();
-    format!("{RUN_MARKER}{id} -->")
-}
-
-/// The results-file hash a report carries, if any.
-pub fn run_of_report(report: &str) -> Option<&str> {
-    let at = report.rfind(RUN_MARKER)? + RUN_MARKER.len();
-    let rest = &report[at..];
-    let end = rest.find(|c: char| !c.is_ascii_hexdigit())?;
-    Some(&rest[..end])
-}
 
 /// Escapes text for HTML element content and attribute values.
 fn escape_html(text: &str) -> String {

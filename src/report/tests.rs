@@ -3,7 +3,8 @@
 use super::highlight::highlight;
 use super::prose::markdown_to_html;
 use super::{render_html, render_markdown};
-use crate::notebook::output::{CellRun, NotebookRun, Output, Provenance};
+use crate::notebook::output::{CellRun, NotebookRun, Provenance};
+use crate::script::output::Output;
 
 const SVG_NS: &str = "http://www.w3.org/2000/svg";
 

@@ -3,7 +3,7 @@
 
 use super::builtins;
 use super::state::{SessionState, StateHandle};
-use crate::notebook::output::Output;
+use crate::script::output::Output;
 use rhai::{Dynamic, Engine, EvalAltResult, Module, ModuleResolver, Position, Shared};
 use std::sync::atomic::Ordering;
 use std::sync::Arc;
@@ -131,7 +131,7 @@ impl ModuleResolver for SandboxResolver {
         path: &str,
         pos: Position,
     ) -> Result<Shared<Module>, Box<EvalAltResult>> {
-        let file = crate::notebook::diagnostic::module_file(path);
+        let file = crate::script::diagnostic::module_file(path);
         let real = self.state.sandbox.read_path(&file).map_err(|m| {
             Box::new(EvalAltResult::ErrorInModule(
                 path.to_string(),

@@ -4,10 +4,13 @@
 pub mod builtins;
 pub mod convert;
 pub mod declare;
+pub mod diagnostic;
 pub mod docs;
 pub mod engine;
 pub mod json;
 pub mod nesting;
+pub mod output;
+pub mod session;
 pub mod show;
 pub mod sizes;
 pub mod state;

@@ -6,8 +6,8 @@
 //! `NativeCallContext::tag()`. Nothing here is global: two sessions never share state.
 
 use crate::display::Style;
-use crate::notebook::output::Output;
 use crate::sandbox::{Limits, Sandbox};
+use crate::script::output::Output;
 use rhai::NativeCallContext;
 use std::sync::atomic::AtomicU64;
 use std::sync::{Arc, Mutex, MutexGuard};

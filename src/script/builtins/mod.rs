@@ -20,7 +20,7 @@ pub mod sweep;
 pub mod time;
 
 use super::docs::Doc;
-use crate::notebook::output::Output;
+use crate::script::output::Output;
 use rhai::Dynamic;
 
 /// The built-ins each binding file declares with [`crate::builtins!`] (registration and

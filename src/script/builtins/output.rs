@@ -2,9 +2,9 @@
 //! the session's current cell, never straight to stdout.
 
 use crate::display::Style;
-use crate::notebook::output::Output;
 use crate::script::convert::{fail, Rr};
 use crate::script::docs::Doc;
+use crate::script::output::Output;
 use crate::script::state::{self, SessionState};
 use crate::script::{json, show};
 use rhai::{Dynamic, Engine};

@@ -11,8 +11,8 @@
 //! `record` inside a case function has no effect.
 
 use super::grid::Cases;
-use crate::notebook::output::Output;
 use crate::script::engine;
+use crate::script::output::Output;
 use crate::script::state::SessionState;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use rayon::prelude::*;
@@ -104,7 +104,7 @@ impl Worker {
 
 /// An engine error as one line: message, `(line L, column C)` and the call chain.
 fn describe(e: &rhai::EvalAltResult) -> String {
-    let se = crate::notebook::diagnostic::ScriptError::from_eval(e);
+    let se = crate::script::diagnostic::ScriptError::from_eval(e);
     let mut lines = se.message.lines();
     let mut s = lines.next().unwrap_or("").to_string();
     if let Some(l) = se.line {
