@@ -2,6 +2,7 @@
 //! (0 success, 1 script error or drift, 2 bad command-line use).
 
 use clap::{Args, Parser, Subcommand};
+use statebook::notebook::output::NotebookRun;
 use statebook::notebook::{check, files, run, sweeps};
 use statebook::sandbox::Limits;
 use statebook::script::sweep::{Shard, SweepPlan};
@@ -194,41 +195,125 @@ fn main() -> ExitCode {
     ExitCode::from(code)
 }
 
+/// Why a command did not succeed: the one error type of the command line. `main` prints it
+/// once ([`CliError::print`]) and exits with [`CliError::exit_code`].
+#[derive(Debug)]
+enum CliError {
+    /// Bad command-line use (exit 2): `error: …`.
+    Usage(String),
+    /// The command failed (exit 1): `error: …` (a message may carry `hint:` lines).
+    Failed(String),
+    /// A script stopped on an error (exit 1): the diagnostic is already worded with its
+    /// `file:line:col` and source line; `note` says what was not written because of it.
+    Script {
+        /// The rendered diagnostic.
+        diagnostic: String,
+        /// What the command left undone, if anything.
+        note: Option<&'static str>,
+    },
+    /// The failure is already on screen (exit 1): `check`'s drift report, or what the
+    /// REPL said when it could not go on.
+    Reported,
+}
+
+impl CliError {
+    /// 2 for bad command-line use, 1 for everything else that did not succeed.
+    fn exit_code(&self) -> u8 {
+        match self {
+            CliError::Usage(_) => 2,
+            CliError::Failed(_) | CliError::Script { .. } | CliError::Reported => 1,
+        }
+    }
+
+    /// Prints the error on standard error (nothing for one already reported).
+    fn print(&self) {
+        match self {
+            CliError::Usage(m) | CliError::Failed(m) => eprintln!("error: {m}"),
+            CliError::Script { diagnostic, note } => {
+                eprintln!("{diagnostic}");
+                if let Some(n) = note {
+                    eprintln!("note: {n}");
+                }
+            }
+            CliError::Reported => {}
+        }
+    }
+}
+
+type CliResult = Result<(), CliError>;
+
+/// A failed write of `path`.
+fn cannot_write(path: &Path, e: impl std::fmt::Display) -> CliError {
+    CliError::Failed(format!("cannot write {}: {e}", path.display()))
+}
+
+/// The first error of a run, as a [`CliError::Script`] with `note`.
+fn script_failed(r: &NotebookRun, note: Option<&'static str>) -> CliResult {
+    match run::first_error(r) {
+        Some(e) => Err(CliError::Script {
+            diagnostic: e.to_string(),
+            note,
+        }),
+        None => Ok(()),
+    }
+}
+
+/// Runs the command (or the REPL) and turns its outcome into the exit code, printing an
+/// error once.
 fn dispatch(cli: Cli) -> u8 {
-    if cli
-        .common
+    let result = check_common(&cli.common).and_then(|()| match &cli.command {
+        None => match statebook::repl::start(cli.common_options()) {
+            0 => Ok(()),
+            _ => Err(CliError::Reported),
+        },
+        Some(command) => command_result(command, &cli.common),
+    });
+    match result {
+        Ok(()) => 0,
+        Err(e) => {
+            e.print();
+            e.exit_code()
+        }
+    }
+}
+
+/// Options shared by every command that must hold before anything runs.
+fn check_common(common: &Common) -> CliResult {
+    if common
         .max_call_depth
         .is_some_and(|d| d > statebook::guard::MAX_CALL_DEPTH)
     {
-        eprintln!(
-            "error: --max-call-depth may be at most {} (each level needs native stack)",
+        return Err(CliError::Usage(format!(
+            "--max-call-depth may be at most {} (each level needs native stack)",
             statebook::guard::MAX_CALL_DEPTH
-        );
-        return 2;
+        )));
     }
-    match cli.command {
-        None => statebook::repl::start(cli.common_options()),
-        Some(Command::Run {
+    Ok(())
+}
+
+fn command_result(command: &Command, common: &Common) -> CliResult {
+    match command {
+        Command::Run {
             file,
             shard,
             sweep_results,
-        }) => cmd_run(&file, shard, sweep_results.as_deref(), &cli.common),
-        Some(Command::Merge { parts, output }) => cmd_merge(&parts, &output),
-        Some(Command::Render {
+        } => cmd_run(file, *shard, sweep_results.as_deref(), common),
+        Command::Merge { parts, output } => cmd_merge(parts, output),
+        Command::Render {
             file,
             output,
             format,
-        }) => cmd_render(
-            &file,
+        } => cmd_render(
+            file,
             output.as_deref(),
             matches!(format, Format::Md),
-            &cli.common,
+            common,
         ),
-        Some(Command::Check { file, tolerance }) => cmd_check(&file, tolerance, &cli.common),
-        Some(Command::Help { name }) => cmd_help(name.as_deref()),
-        Some(Command::New { file }) => cmd_new(&file),
-        Some(Command::FromSession { log, output, title }) => {
-            cmd_from_session(&log, &output, title.as_deref())
+        Command::Check { file, tolerance } => cmd_check(file, *tolerance, common),
+        Command::Help { name } => cmd_help(name.as_deref()),
+        Command::New { file } => cmd_new(file),
+        Command::FromSession { log, output, title } => {
+            cmd_from_session(log, output, title.as_deref())
         }
     }
 }
@@ -241,11 +326,8 @@ impl Cli {
     }
 }
 
-/// Reads and runs a file; prints errors; returns the run or an exit code.
-fn execute(
-    file: &Path,
-    common: &Common,
-) -> Result<(statebook::notebook::output::NotebookRun, Session), u8> {
+/// Reads and runs a file; returns the run and its session.
+fn execute(file: &Path, common: &Common) -> Result<(NotebookRun, Session), CliError> {
     execute_planned(file, common, SweepPlan::default()).map(|(r, s, _)| (r, s))
 }
 
@@ -254,11 +336,8 @@ fn execute_planned(
     file: &Path,
     common: &Common,
     plan: SweepPlan,
-) -> Result<(statebook::notebook::output::NotebookRun, Session, String), u8> {
-    let (text, sha) = files::read_analysis(file).map_err(|m| {
-        eprintln!("error: {m}");
-        1u8
-    })?;
+) -> Result<(NotebookRun, Session, String), CliError> {
+    let (text, sha) = files::read_analysis(file).map_err(CliError::Failed)?;
     let name = file.display().to_string();
     let mut session = Session::new(&common.options(&folder_of(file)));
     session.plan_sweeps(plan);
@@ -270,23 +349,19 @@ fn parse_shard(s: &str) -> Result<Shard, String> {
     Shard::parse(s)
 }
 
-fn cmd_run(file: &Path, shard: Option<Shard>, sweep_results: Option<&Path>, common: &Common) -> u8 {
+fn cmd_run(
+    file: &Path,
+    shard: Option<Shard>,
+    sweep_results: Option<&Path>,
+    common: &Common,
+) -> CliResult {
     let plan = SweepPlan {
         shard,
         keep_log: shard.is_some() || sweep_results.is_some(),
     };
-    let (r, session, sha) = match execute_planned(file, common, plan) {
-        Ok(v) => v,
-        Err(c) => return c,
-    };
+    let (r, session, sha) = execute_planned(file, common, plan)?;
     print!("{}", run::transcript(&r));
-    if let Some(e) = run::first_error(&r) {
-        eprintln!("{e}");
-        if plan.keep_log {
-            eprintln!("note: no sweep results written");
-        }
-        return 1;
-    }
+    script_failed(&r, plan.keep_log.then_some("no sweep results written"))?;
     let logs = session.sweep_logs();
     let (path, text) = match shard {
         Some(s) => (
@@ -297,193 +372,124 @@ fn cmd_run(file: &Path, shard: Option<Shard>, sweep_results: Option<&Path>, comm
         ),
         None => match sweep_results {
             Some(p) => (p.to_path_buf(), sweeps::run_results_text(&sha, &logs)),
-            None => return 0,
+            None => return Ok(()),
         },
     };
-    match statebook::sandbox::write_atomic(&path, text.as_bytes()) {
-        Ok(()) => {
-            println!("wrote {}", path.display());
-            0
-        }
-        Err(e) => {
-            eprintln!("error: cannot write {}: {e}", path.display());
-            1
-        }
-    }
+    statebook::sandbox::write_atomic(&path, text.as_bytes()).map_err(|e| cannot_write(&path, e))?;
+    println!("wrote {}", path.display());
+    Ok(())
 }
 
-fn cmd_merge(parts: &[PathBuf], output: &Path) -> u8 {
+fn cmd_merge(parts: &[PathBuf], output: &Path) -> CliResult {
     let mut texts = Vec::with_capacity(parts.len());
     for p in parts {
-        match statebook::budget::read_bounded(p) {
-            Ok(t) => texts.push((p.display().to_string(), t)),
-            Err(e) => {
-                eprintln!("error: cannot read {}: {e}", p.display());
-                return 1;
-            }
-        }
+        let t = statebook::budget::read_bounded(p)
+            .map_err(|e| CliError::Failed(format!("cannot read {}: {e}", p.display())))?;
+        texts.push((p.display().to_string(), t));
     }
-    let merged = match sweeps::merge(&texts) {
-        Ok(m) => m,
-        Err(m) => {
-            eprintln!("error: {m}");
-            return 1;
-        }
-    };
-    match statebook::sandbox::write_atomic(output, merged.as_bytes()) {
-        Ok(()) => {
-            println!("wrote {} (from {} shards)", output.display(), parts.len());
-            0
-        }
-        Err(e) => {
-            eprintln!("error: cannot write {}: {e}", output.display());
-            1
-        }
-    }
+    let merged = sweeps::merge(&texts).map_err(CliError::Failed)?;
+    statebook::sandbox::write_atomic(output, merged.as_bytes())
+        .map_err(|e| cannot_write(output, e))?;
+    println!("wrote {} (from {} shards)", output.display(), parts.len());
+    Ok(())
 }
 
-fn cmd_render(file: &Path, output: Option<&Path>, markdown: bool, common: &Common) -> u8 {
+fn cmd_render(file: &Path, output: Option<&Path>, markdown: bool, common: &Common) -> CliResult {
     // One render of a file at a time, so that the report and the results file of two
     // concurrent renders cannot mix (a folder where no lock file can be made is read-only,
     // and the writes below fail there anyway).
     let _lock = statebook::safe_fs::lock(&statebook::safe_fs::resolve(file), true).ok();
-    let (r, session) = match execute(file, common) {
-        Ok(v) => v,
-        Err(c) => return c,
-    };
-    if let Some(e) = run::first_error(&r) {
-        eprintln!("{e}");
-        eprintln!("note: no report written; an existing report was left as it was");
-        return 1;
-    }
+    let (r, session) = execute(file, common)?;
+    script_failed(
+        &r,
+        Some("no report written; an existing report was left as it was"),
+    )?;
     let inputs = session.sandbox().files_read();
-    match statebook::report::write_outputs(file, output, markdown, &r, &session.records(), &inputs)
-    {
-        Ok(written) => {
-            for w in written {
-                println!("wrote {}", w.display());
-            }
-            0
-        }
-        Err(m) => {
-            eprintln!("error: {m}");
-            1
-        }
+    let written =
+        statebook::report::write_outputs(file, output, markdown, &r, &session.records(), &inputs)
+            .map_err(CliError::Failed)?;
+    for w in written {
+        println!("wrote {}", w.display());
     }
+    Ok(())
 }
 
-fn cmd_check(file: &Path, tolerance: f64, common: &Common) -> u8 {
+fn cmd_check(file: &Path, tolerance: f64, common: &Common) -> CliResult {
     if !(tolerance.is_finite() && tolerance >= 0.0) {
-        eprintln!("error: --tolerance must be a finite number ≥ 0, found {tolerance}");
-        return 2;
+        return Err(CliError::Usage(format!(
+            "--tolerance must be a finite number ≥ 0, found {tolerance}"
+        )));
     }
-    let (r, session) = match execute(file, common) {
-        Ok(v) => v,
-        Err(c) => return c,
-    };
-    if let Some(e) = run::first_error(&r) {
-        eprintln!("{e}");
-        return 1;
-    }
+    let (r, session) = execute(file, common)?;
+    script_failed(&r, None)?;
     // Shared with other checks, never while a render is renaming its pair into place.
     let _lock = statebook::safe_fs::lock(&statebook::safe_fs::resolve(file), false).ok();
-    match check::compare_with_saved(file, &session.records(), tolerance) {
-        Ok(report) => {
-            print!("{}", report.text);
-            if report.passed {
-                0
-            } else {
-                1
-            }
-        }
-        Err(m) => {
-            eprintln!("error: {m}");
-            1
-        }
+    let report =
+        check::compare_with_saved(file, &session.records(), tolerance).map_err(CliError::Failed)?;
+    print!("{}", report.text);
+    if report.passed {
+        Ok(())
+    } else {
+        Err(CliError::Reported)
     }
 }
 
-fn cmd_help(name: Option<&str>) -> u8 {
+fn cmd_help(name: Option<&str>) -> CliResult {
     use statebook::script::docs;
     match name {
-        None => {
-            print!("{}", docs::overview());
-            0
+        None => print!("{}", docs::overview()),
+        Some(n) => {
+            let d = docs::find(n).ok_or_else(|| {
+                CliError::Failed(format!(
+                    "no built-in named '{n}'\nhint: `statebook help` lists them all"
+                ))
+            })?;
+            println!("{}", docs::page(&d));
         }
-        Some(n) => match docs::find(n) {
-            Some(d) => {
-                println!("{}", docs::page(&d));
-                0
-            }
-            None => {
-                eprintln!("error: no built-in named '{n}'\nhint: `statebook help` lists them all");
-                1
-            }
-        },
     }
+    Ok(())
 }
 
-fn cmd_new(file: &Path) -> u8 {
+/// Refuses to replace an existing file (`new` and `from-session` never overwrite).
+fn refuse_existing(file: &Path, command: &str) -> CliResult {
     if file.exists() {
-        eprintln!(
-            "error: {} already exists; statebook new never overwrites a file",
+        return Err(CliError::Failed(format!(
+            "{} already exists; statebook {command} never overwrites a file",
             file.display()
-        );
-        return 1;
+        )));
     }
+    Ok(())
+}
+
+fn cmd_new(file: &Path) -> CliResult {
+    refuse_existing(file, "new")?;
     let stem = file
         .file_stem()
         .map(|s| s.to_string_lossy().into_owned())
         .unwrap_or_default();
-    match statebook::sandbox::write_atomic(file, check::starter(&stem).as_bytes()) {
-        Ok(()) => {
-            println!("wrote {}", file.display());
-            println!(
-                "next: statebook run {0}   or   statebook render {0}",
-                file.display()
-            );
-            0
-        }
-        Err(e) => {
-            eprintln!("error: cannot write {}: {e}", file.display());
-            1
-        }
-    }
+    statebook::sandbox::write_atomic(file, check::starter(&stem).as_bytes())
+        .map_err(|e| cannot_write(file, e))?;
+    println!("wrote {}", file.display());
+    println!(
+        "next: statebook run {0}   or   statebook render {0}",
+        file.display()
+    );
+    Ok(())
 }
 
-fn cmd_from_session(log: &Path, output: &Path, title: Option<&str>) -> u8 {
+fn cmd_from_session(log: &Path, output: &Path, title: Option<&str>) -> CliResult {
     use statebook::notebook::session_log;
-    if output.exists() {
-        eprintln!(
-            "error: {} already exists; statebook from-session never overwrites a file",
-            output.display()
-        );
-        return 1;
-    }
-    let (text, _) = match files::read_analysis(log) {
-        Ok(v) => v,
-        Err(m) => {
-            eprintln!("error: {m}");
-            return 1;
-        }
-    };
+    refuse_existing(output, "from-session")?;
+    let (text, _) = files::read_analysis(log).map_err(CliError::Failed)?;
     let stem = output
         .file_stem()
         .map(|s| s.to_string_lossy().replace(['-', '_'], " "))
         .unwrap_or_default();
     let title = title.map(str::to_string).unwrap_or(stem);
-    let (analysis, summary) =
-        match session_log::to_analysis(&text, &log.display().to_string(), &title) {
-            Ok(v) => v,
-            Err(m) => {
-                eprintln!("error: {}: {m}", log.display());
-                return 1;
-            }
-        };
-    if let Err(e) = statebook::sandbox::write_atomic(output, analysis.as_bytes()) {
-        eprintln!("error: cannot write {}: {e}", output.display());
-        return 1;
-    }
+    let (analysis, summary) = session_log::to_analysis(&text, &log.display().to_string(), &title)
+        .map_err(|m| CliError::Failed(format!("{}: {m}", log.display())))?;
+    statebook::sandbox::write_atomic(output, analysis.as_bytes())
+        .map_err(|e| cannot_write(output, e))?;
     println!(
         "wrote {} ({} input{} kept, {} left out)",
         output.display(),
@@ -494,5 +500,5 @@ fn cmd_from_session(log: &Path, output: &Path, title: Option<&str>) -> u8 {
     for (line, why) in &summary.left_out {
         println!("  left out: the input at {}:{line} ({why})", log.display());
     }
-    0
+    Ok(())
 }
