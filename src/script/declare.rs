@@ -61,7 +61,7 @@ impl Builtin {
             usage: leak(
                 self.forms
                     .iter()
-                    .map(|f| f.text(self.name))
+                    .map(Form::text)
                     .collect::<Vec<_>>()
                     .join("\n"),
             ),
@@ -434,7 +434,7 @@ macro_rules! builtins {
         $(#[doc = $doc:literal])*
         #[family = $family:literal]
         $(
-            fn $name:ident ($call:ident $(, $arg:ident : $ty:ty)* $(,)?)
+            fn $name:ident ($call:ident $(, &mut $recv:ident : $rty:ty)? $(, $arg:ident : $ty:ty)* $(,)?)
                 -> $ret:ty $(as $ret_doc:literal)? $body:block
         )+
     )*) => {
@@ -449,25 +449,15 @@ macro_rules! builtins {
                 forms: &[$(
                     $crate::script::declare::Form {
                         name: stringify!($name),
+                        receiver: $crate::__receiver!($($recv : $rty)?),
                         args: &[$((stringify!($arg), <$ty as $crate::script::declare::Param>::KIND)),*],
                         returns: $crate::__first!($($ret_doc,)? <$ret as $crate::script::declare::Returns>::KIND),
                     }
                 ),+],
                 register: |engine: &mut ::rhai::Engine| {
                     $(
-                        engine.register_fn(
-                            stringify!($name),
-                            |ctx: ::rhai::NativeCallContext $(, $arg: ::rhai::Dynamic)*|
-                                -> $crate::script::convert::Rr<$ret> {
-                                #[allow(unused_variables)]
-                                let $call = $crate::script::declare::Call::new(&ctx, stringify!($name));
-                                $(
-                                    let $arg = <$ty as $crate::script::declare::Param>::from_arg(
-                                        $arg, &$call, stringify!($arg),
-                                    )?;
-                                )*
-                                $body
-                            },
+                        $crate::__register_form!(
+                            engine, $name, $call, [$($recv : $rty)?], [$($arg : $ty),*], $ret, $body
                         );
                     )+
                 },
@@ -476,10 +466,65 @@ macro_rules! builtins {
     };
 }
 
+/// The receiver of a method form, as (name, type), or `None` for a function form.
+#[doc(hidden)]
+#[macro_export]
+macro_rules! __receiver {
+    () => {
+        None
+    };
+    ($recv:ident : $rty:ty) => {
+        Some((stringify!($recv), stringify!($rty)))
+    };
+}
+
+/// Registers one form of a declared built-in: arguments arrive as engine values and are
+/// converted by their [`Param`] type before the body runs; a method form takes its
+/// receiver by `&mut` (so `t.save_csv(p)` works on the value in place, uncopied).
+#[doc(hidden)]
+#[macro_export]
+macro_rules! __register_form {
+    ($engine:ident, $name:ident, $call:ident, [], [$($arg:ident : $ty:ty),*], $ret:ty, $body:block) => {
+        $engine.register_fn(
+            stringify!($name),
+            |ctx: ::rhai::NativeCallContext $(, $arg: ::rhai::Dynamic)*|
+                -> $crate::script::convert::Rr<$ret> {
+                #[allow(unused_variables)]
+                let $call = $crate::script::declare::Call::new(&ctx, stringify!($name));
+                $(
+                    let $arg = <$ty as $crate::script::declare::Param>::from_arg(
+                        $arg, &$call, stringify!($arg),
+                    )?;
+                )*
+                $body
+            },
+        );
+    };
+    ($engine:ident, $name:ident, $call:ident, [$recv:ident : $rty:ty], [$($arg:ident : $ty:ty),*], $ret:ty, $body:block) => {
+        $engine.register_fn(
+            stringify!($name),
+            |ctx: ::rhai::NativeCallContext, $recv: &mut $rty $(, $arg: ::rhai::Dynamic)*|
+                -> $crate::script::convert::Rr<$ret> {
+                #[allow(unused_variables)]
+                let $call = $crate::script::declare::Call::new(&ctx, stringify!($name));
+                $(
+                    let $arg = <$ty as $crate::script::declare::Param>::from_arg(
+                        $arg, &$call, stringify!($arg),
+                    )?;
+                )*
+                $body
+            },
+        );
+    };
+}
+
 /// One call form of a built-in: its parameters (name, kind) and what it returns.
 pub struct Form {
-    /// The name this overload is registered under (the same as its built-in's).
+    /// The name this overload is registered under (usually its built-in's; a page may
+    /// group related names, as `failures`, `successes` and `filter`).
     pub name: &'static str,
+    /// For a method form, the receiver as (name, type): shown as `t.name(…)`.
+    pub receiver: Option<(&'static str, &'static str)>,
     /// Parameters as (name, kind).
     pub args: &'static [(&'static str, &'static str)],
     /// What the call returns, as the page shows it.
@@ -487,9 +532,15 @@ pub struct Form {
 }
 
 impl Form {
-    /// `name(arg: kind, …) → returns`.
-    pub fn text(&self, name: &str) -> String {
+    /// `name(arg: kind, …) → returns`, or `recv.name(arg: kind, …) → returns` for a method
+    /// (with `(recv: Type)` after it unless the name already says the type).
+    pub fn text(&self) -> String {
         let args: Vec<String> = self.args.iter().map(|(a, k)| format!("{a}: {k}")).collect();
-        format!("{name}({}) → {}", args.join(", "), self.returns)
+        let call = format!("{}({}) → {}", self.name, args.join(", "), self.returns);
+        match self.receiver {
+            Some((r, ty)) if r == ty.to_lowercase() => format!("{r}.{call}"),
+            Some((r, ty)) => format!("{r}.{call}   ({r}: {ty})"),
+            None => call,
+        }
     }
 }

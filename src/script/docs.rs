@@ -58,8 +58,16 @@ pub fn find(name: &str) -> Option<Doc> {
     if let Some(d) = docs.iter().find(|d| d.name == name) {
         return Some(*d);
     }
-    docs.into_iter()
-        .find(|d| mentions_member(d.usage, name) || mentions_member(d.details, name))
+    // A page that shows a call form of the name (`name(` or `.name`) before one that only
+    // mentions it in passing.
+    let form = format!("{name}(");
+    let has_form = |d: &Doc| {
+        d.usage.lines().any(|l| l.trim_start().starts_with(&form)) || mentions_member(d.usage, name)
+    };
+    if let Some(d) = docs.iter().find(|d| has_form(d)) {
+        return Some(*d);
+    }
+    docs.into_iter().find(|d| mentions_member(d.details, name))
 }
 
 /// Whether `text` shows `.name` as a whole word (a property or a method).

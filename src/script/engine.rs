@@ -67,7 +67,6 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     builtins::linalg::register(&mut e);
     builtins::lti::register(&mut e);
     builtins::output::register(&mut e, state);
-    builtins::plot::register(&mut e);
     builtins::time::register(&mut e);
     builtins::design::register(&mut e);
     builtins::sweep::register(&mut e);

@@ -52,7 +52,6 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     matrix::DOCS,
     lti::DOCS,
     output::DOCS,
-    plot::DOCS,
     time::DOCS,
     design::DOCS,
     sweep::DOCS,

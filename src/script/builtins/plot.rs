@@ -1,25 +1,10 @@
-//! Figures: `plot`, `fig.add`, `save`. The drawing itself is `crate::plot`.
+//! Figures: `plot`, `fig.add`, `save`, all declared. The drawing itself is `crate::plot`.
 
 use crate::plot::{Figure as PlotFigure, MarkerShape, PlotOptions, Series};
 use crate::script::convert::{fail, to_f64_vec, to_finite_vec, to_str, type_name, Rr};
 use crate::script::declare::{Call, Param};
-use crate::script::docs::Doc;
 use crate::script::types::Figure;
-use rhai::{Array, Dynamic, Engine, Map};
-
-/// The page of `fig.add`, registered by hand in [`register`]: it changes the figure in
-/// place, which a declaration (whose arguments are copies) cannot (`plot` and `save` are
-/// declared in `BUILTINS`).
-pub const DOCS: &[Doc] = &[Doc {
-    name: "add",
-    family: "plots",
-    usage: "fig.add(x, y)\nfig.add(x, y, options)",
-    summary: "adds a series to a figure's first panel",
-    details: "options: #{ label, dashed, markers }. As in plot, a y value inf or -inf is a gap \
-              in the line; NaN is refused.",
-    example:
-        "let fig = plot([0, 1], [0, 1]);\nfig.add([0, 1], [1, 0], #{ label: \"falling\" });\nfig",
-}];
+use rhai::{Array, Dynamic, Map};
 
 /// The x values of a plot: finite numbers.
 struct Abscissae(Vec<f64>);
@@ -42,7 +27,35 @@ impl Param for SeriesList {
     }
 }
 
+/// One series of y values (`inf`/`-inf` are gaps, NaN refused).
+struct Gapped(Vec<f64>);
+
+impl Param for Gapped {
+    const KIND: &'static str = "numbers";
+    fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
+        gap_vec(&v, call.name, arg).map(Gapped)
+    }
+}
+
 crate::builtins! {
+    /// adds a series to a figure's first panel, in place
+    ///
+    /// x: finite numbers; y: numbers of the same length, where inf or -inf is a gap in the
+    /// line (as in plot) and NaN is refused. options: #{ label, dashed, markers } — a
+    /// label turns the legend on.
+    ///
+    /// example:
+    ///     let fig = plot([0, 1], [0, 1]);
+    ///     fig.add([0, 1], [1, 0], #{ label: "falling" });
+    ///     fig
+    #[family = "plots"]
+    fn add(call, &mut fig: Figure, x: Abscissae, y: Gapped) -> () {
+        add_series(&call, fig, x.0, y.0, None)
+    }
+    fn add(call, &mut fig: Figure, x: Abscissae, y: Gapped, options: Map) -> () {
+        add_series(&call, fig, x.0, y.0, Some(&options))
+    }
+
     /// a line plot of y against x; y may be an array of series
     ///
     /// x: array of numbers. y: array of numbers, or an array of such arrays (one series
@@ -216,13 +229,17 @@ fn make_plot(x: Vec<f64>, ys: Vec<Vec<f64>>, opts: Option<&Map>) -> Rr<Figure> {
     Ok(Figure(fig))
 }
 
-fn add_series(fig: &mut Figure, x: &Dynamic, y: &Dynamic, opts: Option<&Map>) -> Rr<()> {
-    let f = "add";
-    let x = to_finite_vec(x, f, "x")?;
-    let y = gap_vec(y, f, "y")?;
+fn add_series(
+    call: &Call,
+    fig: &mut Figure,
+    x: Vec<f64>,
+    y: Vec<f64>,
+    opts: Option<&Map>,
+) -> Rr<()> {
+    let f = call.name;
     if x.len() != y.len() {
-        return Err(fail(format!(
-            "add: y has {} values but x has {}",
+        return Err(call.fail(format_args!(
+            "y has {} values but x has {}",
             y.len(),
             x.len()
         )));
@@ -244,7 +261,7 @@ fn add_series(fig: &mut Figure, x: &Dynamic, y: &Dynamic, opts: Option<&Map>) ->
         s = s.with_dashes();
     }
     let Some(panel) = fig.0.panels.first_mut() else {
-        return Err(fail("add: the figure has no panel to add to"));
+        return Err(call.fail("the figure has no panel to add to"));
     };
     if label.is_some() {
         panel.legend = true;
@@ -256,17 +273,6 @@ fn add_series(fig: &mut Figure, x: &Dynamic, y: &Dynamic, opts: Option<&Map>) ->
 /// Renders a figure to SVG, with the error in script terms.
 pub fn svg(fig: &Figure) -> Rr<String> {
     fig.0.to_svg().map_err(|e| fail(format!("figure: {e}")))
-}
-
-/// Registers `fig.add` (documented in `DOCS`); `plot` and `save` are declared in
-/// `BUILTINS`.
-pub fn register(engine: &mut Engine) {
-    engine.register_fn("add", |fig: &mut Figure, x: Dynamic, y: Dynamic| {
-        add_series(fig, &x, &y, None)
-    });
-    engine.register_fn("add", |fig: &mut Figure, x: Dynamic, y: Dynamic, o: Map| {
-        add_series(fig, &x, &y, Some(&o))
-    });
 }
 
 /// One line describing a figure (for print and the terminal transcript).

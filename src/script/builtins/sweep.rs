@@ -1,15 +1,16 @@
-//! Parameter-study built-ins: `sweep` and `random_cases` (declared), and the methods and
-//! properties of the `Table` a sweep returns (registered by hand, documented in `DOCS`). The machinery (workers, grid, shards) is `script::sweep`; the sampling
-//! is `numeric::sampling`.
+//! Parameter-study built-ins: `sweep` and `random_cases` (declared), the
+//! methods of the `Table` a sweep returns (declared), and its properties (registered in
+//! `register`, documented on the `Table` page in `DOCS`). The machinery (workers, grid,
+//! shards) is `script::sweep`; the sampling is `numeric::sampling`.
 
 use crate::numeric::sampling::{self, Distribution};
-use crate::script::convert::{fail, to_count, to_f64, to_str, type_name, Rr};
+use crate::script::convert::{fail, to_count, to_f64, type_name, Rr};
 use crate::script::declare::{Call, Param};
 use crate::script::docs::Doc;
 use crate::script::state;
 use crate::script::sweep::run::RunOptions;
 use crate::script::sweep::{self, Table};
-use rhai::{Array, Dynamic, Engine, FnPtr, Map, NativeCallContext, FLOAT, INT};
+use rhai::{Array, Dynamic, Engine, FnPtr, Map, FLOAT, INT};
 
 /// The pages of the `Table` methods and properties, registered by hand in [`register`]
 /// (`sweep` and `random_cases` are declared in `BUILTINS`).
@@ -28,42 +29,6 @@ pub const DOCS: &[Doc] = &[
                   for plots. A table from a sharded run holds only that shard's cases; \
                   table.cases gives their indices in the full sweep.",
         example: "let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });\nplot(t.column(\"k\"), t.column(\"worst_damping\"))",
-    },
-    Doc {
-        name: "failures",
-        family: "parameter studies",
-        usage: "table.failures() → Table\ntable.successes() → Table\ntable.filter(f) → Table",
-        summary: "the failed cases, the successful ones, or the rows where f(row) is true",
-        details: "f: a function of a row map returning true or false.",
-        example: "let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });\nt.filter(|r| r.k > 2).len()",
-    },
-    Doc {
-        name: "row_with_smallest",
-        family: "parameter studies",
-        usage: "table.row_with_smallest(name) → map\ntable.row_with_largest(name) → map",
-        summary: "the row whose numeric column name is smallest (or largest)",
-        details: "Failed cases and NaN values are skipped; ties go to the earliest row.",
-        example: "let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });\nrecord(\"worst_case\", t.row_with_smallest(\"worst_damping\"));",
-    },
-    Doc {
-        name: "distinct_values",
-        family: "parameter studies",
-        usage: "table.distinct_values(name) → array",
-        summary: "the distinct values of a column, in order of first appearance",
-        details: "For a grid sweep these are the grid's levels of that parameter.",
-        example: "let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });\nfor k in t.distinct_values(\"k\") { print(k); }",
-    },
-    Doc {
-        name: "save_csv",
-        family: "parameter studies",
-        usage: "table.save_csv(path)",
-        summary: "writes a sweep table as CSV (inside the analysis folder)",
-        details: "A header line of column names, then one line per case; floats in their \
-                  shortest exact form, () as an empty field, a case_error column when a case \
-                  failed. record(name, table) and to_json(table) give an object of columns \
-                  ({\"k\": [..], \"worst_damping\": [..]}, plus \"case_error\" when a case \
-                  failed).",
-        example: "let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });\nt.save_csv(\"tolerance-study.csv\");",
     },
 ];
 
@@ -130,6 +95,136 @@ crate::builtins! {
     #[family = "parameter studies"]
     fn random_cases(call, spec: Map, count: usize, seed: Seed) -> Array as "array of maps" {
         random_cases(&call, &spec, count, seed.0)
+    }
+
+    /// one column of a sweep table, as an array in row order
+    ///
+    /// name: a parameter or result name (table.columns lists them). A failed case has () in
+    /// its result columns; table.successes().column(name) leaves them out.
+    ///
+    /// example:
+    ///     let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });
+    ///     plot(t.column("k"), t.column("worst_damping"))
+    #[family = "parameter studies"]
+    fn column(call, &mut table: Table, name: String) -> Array {
+        let j = column_of(table, &name, call.name)?;
+        Ok(table.rows.iter().map(|r| r.values[j].clone()).collect())
+    }
+
+    /// one row of a sweep table, as a map of its columns
+    ///
+    /// i: the row index, from 0 (a sharded run's table holds only its slice; table.cases
+    /// gives each row's index in the full sweep).
+    ///
+    /// example:
+    ///     let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });
+    ///     t.row(0).worst_damping
+    #[family = "parameter studies"]
+    fn row(call, &mut table: Table, i: usize) -> Map {
+        table.row_map(i).ok_or_else(|| {
+            call.fail(format_args!(
+                "index {i} is out of range (the table has {} rows)",
+                table.rows.len()
+            ))
+        })
+    }
+
+    /// the number of rows (cases) of a sweep table
+    ///
+    /// example:
+    ///     let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });
+    ///     t.len()
+    #[family = "parameter studies"]
+    fn len(call, &mut table: Table) -> INT {
+        Ok(table.rows.len() as INT)
+    }
+
+    /// the failed cases, the successful ones, or the rows where f(row) is true
+    ///
+    /// f: a function of a row map returning true or false. Each returns a new Table with
+    /// the same columns.
+    ///
+    /// example:
+    ///     let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });
+    ///     t.filter(|r| r.k > 2).len() + t.failures().len() + t.successes().len()
+    #[family = "parameter studies"]
+    fn failures(call, &mut table: Table) -> Table {
+        Ok(table.retain(|r| r.error.is_some()))
+    }
+    fn successes(call, &mut table: Table) -> Table {
+        Ok(table.retain(|r| r.error.is_none()))
+    }
+    fn filter(call, &mut table: Table, f: FnPtr) -> Table {
+        let mut keep = Vec::with_capacity(table.rows.len());
+        for i in 0..table.rows.len() {
+            let row = Dynamic::from_map(table.row_map(i).unwrap_or_default());
+            let v: Dynamic = f.call_within_context(call.ctx(), (row,))?;
+            keep.push(v.as_bool().map_err(|_| {
+                call.fail(format_args!(
+                    "the function must return true or false, found {}",
+                    type_name(&v)
+                ))
+            })?);
+        }
+        let mut k = keep.into_iter();
+        Ok(table.retain(|_| k.next().unwrap_or(false)))
+    }
+
+    /// the row whose numeric column name is smallest (or largest)
+    ///
+    /// Failed cases and NaN values are skipped; ties go to the earliest row.
+    ///
+    /// example:
+    ///     let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });
+    ///     record("worst_case", t.row_with_smallest("worst_damping"));
+    ///     t.row_with_largest("worst_damping").k
+    #[family = "parameter studies"]
+    fn row_with_smallest(call, &mut table: Table, name: String) -> Map {
+        extreme_row(&call, table, &name, false)
+    }
+    fn row_with_largest(call, &mut table: Table, name: String) -> Map {
+        extreme_row(&call, table, &name, true)
+    }
+
+    /// the distinct values of a column, in order of first appearance
+    ///
+    /// For a grid sweep these are the grid's levels of that parameter; () (a failed case)
+    /// is left out.
+    ///
+    /// example:
+    ///     let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });
+    ///     for k in t.distinct_values("k") { print(k); }
+    #[family = "parameter studies"]
+    fn distinct_values(call, &mut table: Table, name: String) -> Array {
+        let j = column_of(table, &name, call.name)?;
+        let mut seen = std::collections::HashSet::new();
+        let mut out = Array::new();
+        for r in &table.rows {
+            let v = &r.values[j];
+            if v.is_unit() {
+                continue;
+            }
+            let key = crate::script::json::encode(v).to_string();
+            if seen.insert(key) {
+                out.push(v.clone());
+            }
+        }
+        Ok(out)
+    }
+
+    /// writes a sweep table as CSV (inside the analysis folder)
+    ///
+    /// A header line of column names, then one line per case; floats in their shortest
+    /// exact form, () as an empty field, a case_error column when a case failed.
+    /// record(name, table) and to_json(table) give an object of columns ({"k": [..],
+    /// "worst_damping": [..]}, plus "case_error" when a case failed).
+    ///
+    /// example:
+    ///     let t = sweep(#{ k: [1, 4, 9] }, |p| #{ worst_damping: 0.2 / p.k });
+    ///     t.save_csv("tolerance-study.csv");
+    #[family = "parameter studies"]
+    fn save_csv(call, &mut table: Table, path: String) -> () {
+        call.write_file(&path, table.to_csv().as_bytes())
     }
 }
 
@@ -303,14 +398,9 @@ fn column_of(t: &Table, name: &str, fname: &str) -> Rr<usize> {
     })
 }
 
-fn extreme_row(t: &Table, name: &Dynamic, largest: bool) -> Rr<Map> {
-    let fname = if largest {
-        "row_with_largest"
-    } else {
-        "row_with_smallest"
-    };
-    let name = to_str(name, fname, "name")?;
-    let j = column_of(t, &name, fname)?;
+fn extreme_row(call: &Call, t: &Table, name: &str, largest: bool) -> Rr<Map> {
+    let fname = call.name;
+    let j = column_of(t, name, fname)?;
     let mut best: Option<(usize, f64)> = None;
     for (i, r) in t.rows.iter().enumerate() {
         if r.error.is_some() {
@@ -344,23 +434,9 @@ fn names(v: &[String]) -> Array {
     v.iter().map(|s| Dynamic::from(s.clone())).collect()
 }
 
-/// Registers the methods and properties of a `Table` (documented in `DOCS`); `sweep` and
-/// `random_cases` are declared in `BUILTINS`.
+/// Registers the properties of a `Table` (documented on its page in `DOCS`); its methods,
+/// `sweep` and `random_cases` are declared in `BUILTINS`.
 pub fn register(engine: &mut Engine) {
-    engine.register_fn("column", |t: &mut Table, name: Dynamic| -> Rr<Array> {
-        let name = to_str(&name, "column", "name")?;
-        let j = column_of(t, &name, "column")?;
-        Ok(t.rows.iter().map(|r| r.values[j].clone()).collect())
-    });
-    engine.register_fn("row", |t: &mut Table, i: Dynamic| -> Rr<Map> {
-        let k = to_count(&i, "row", "index")?;
-        t.row_map(k).ok_or_else(|| {
-            fail(format!(
-                "row: index {k} is out of range (the table has {} rows)",
-                t.rows.len()
-            ))
-        })
-    });
     engine.register_get("rows", |t: &mut Table| -> Array {
         (0..t.rows.len())
             .filter_map(|i| t.row_map(i).map(Dynamic::from_map))
@@ -388,58 +464,4 @@ pub fn register(engine: &mut Engine) {
             .collect()
     });
     engine.register_get("failure_count", |t: &mut Table| t.failure_count() as INT);
-    engine.register_fn("len", |t: &mut Table| t.rows.len() as INT);
-    engine.register_fn("failures", |t: &mut Table| t.retain(|r| r.error.is_some()));
-    engine.register_fn("successes", |t: &mut Table| t.retain(|r| r.error.is_none()));
-    engine.register_fn(
-        "filter",
-        |ctx: NativeCallContext, t: &mut Table, f: FnPtr| -> Rr<Table> {
-            let mut keep = Vec::with_capacity(t.rows.len());
-            for i in 0..t.rows.len() {
-                let row = Dynamic::from_map(t.row_map(i).unwrap_or_default());
-                let v: Dynamic = f.call_within_context(&ctx, (row,))?;
-                keep.push(v.as_bool().map_err(|_| {
-                    fail(format!(
-                        "filter: the function must return true or false, found {}",
-                        type_name(&v)
-                    ))
-                })?);
-            }
-            let mut k = keep.into_iter();
-            Ok(t.retain(|_| k.next().unwrap_or(false)))
-        },
-    );
-    engine.register_fn("row_with_smallest", |t: &mut Table, name: Dynamic| {
-        extreme_row(t, &name, false)
-    });
-    engine.register_fn("row_with_largest", |t: &mut Table, name: Dynamic| {
-        extreme_row(t, &name, true)
-    });
-    engine.register_fn(
-        "distinct_values",
-        |t: &mut Table, name: Dynamic| -> Rr<Array> {
-            let name = to_str(&name, "distinct_values", "name")?;
-            let j = column_of(t, &name, "distinct_values")?;
-            let mut seen = std::collections::HashSet::new();
-            let mut out = Array::new();
-            for r in &t.rows {
-                let v = &r.values[j];
-                if v.is_unit() {
-                    continue;
-                }
-                let key = crate::script::json::encode(v).to_string();
-                if seen.insert(key) {
-                    out.push(v.clone());
-                }
-            }
-            Ok(out)
-        },
-    );
-    engine.register_fn(
-        "save_csv",
-        |ctx: NativeCallContext, t: &mut Table, path: Dynamic| -> Rr<()> {
-            let path = to_str(&path, "save_csv", "path")?;
-            Call::new(&ctx, "save_csv").write_file(&path, t.to_csv().as_bytes())
-        },
-    );
 }
