@@ -123,6 +123,7 @@ fn receiver_of(ty: &str) -> &'static str {
     match ty {
         "Table" => "sweep(#{ k: [1, 2] }, |p| #{ y: p.k })",
         "Figure" => "plot([0, 1], [0, 1])",
+        "Matrix" => "identity(2)",
         other => panic!("no test receiver for the type {other}"),
     }
 }

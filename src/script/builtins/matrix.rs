@@ -2,7 +2,7 @@
 
 use crate::numeric::linalg::ops;
 use crate::script::convert::{
-    check_entries, fail, float_array, matrix_value, num, to_count, to_f64, to_f64_vec, Rr,
+    check_entries, fail, float_array, matrix_value, num, to_count, to_f64_vec, Rr,
 };
 use crate::script::declare::Call;
 use crate::script::docs::Doc;
@@ -11,8 +11,8 @@ use crate::script::types::Matrix;
 use nalgebra::DMatrix;
 use rhai::{Array, Dynamic, Engine, FLOAT, INT};
 
-/// Help pages of the property getters and `&mut` methods registered by hand in
-/// [`register`] (the rest are declared in `BUILTINS`).
+/// Help pages of the property getters registered by hand in [`register`] (methods and the
+/// rest are declared in `BUILTINS`).
 pub const DOCS: &[Doc] = &[
     Doc {
         name: "rows",
@@ -29,30 +29,6 @@ pub const DOCS: &[Doc] = &[
         summary: "number of columns",
         details: "",
         example: "zero_matrix(2, 5).cols",
-    },
-    Doc {
-        name: "get",
-        family: "matrices",
-        usage: "A.get(i, j) → float",
-        summary: "the entry in row i, column j (0-based)",
-        details: "",
-        example: "matrix([[1, 2], [3, 4]]).get(1, 0)   // 3.0",
-    },
-    Doc {
-        name: "set",
-        family: "matrices",
-        usage: "A.set(i, j, value)",
-        summary: "changes the entry in row i, column j (0-based)",
-        details: "",
-        example: "let A = identity(2);\nA.set(0, 1, 5);",
-    },
-    Doc {
-        name: "to_array",
-        family: "matrices",
-        usage: "A.to_array() → array of arrays",
-        summary: "the entries as an array of rows of floats",
-        details: "",
-        example: "identity(2).to_array()",
     },
 ];
 
@@ -92,23 +68,6 @@ fn scale(m: &Matrix, s: FLOAT) -> Matrix {
 pub fn register(engine: &mut Engine) {
     engine.register_get("rows", |m: &mut Matrix| m.0.nrows() as INT);
     engine.register_get("cols", |m: &mut Matrix| m.0.ncols() as INT);
-    engine.register_fn(
-        "get",
-        |m: &mut Matrix, i: Dynamic, j: Dynamic| -> Rr<FLOAT> {
-            let (i, j) = (to_int_index(&i, "get", "i")?, to_int_index(&j, "get", "j")?);
-            entry(&m.0, i, j, "get")
-        },
-    );
-    engine.register_fn(
-        "set",
-        |m: &mut Matrix, i: Dynamic, j: Dynamic, v: Dynamic| -> Rr<()> {
-            let (i, j) = (to_int_index(&i, "set", "i")?, to_int_index(&j, "set", "j")?);
-            let v = to_f64(&v, "set", "value")?;
-            entry(&m.0, i, j, "set")?;
-            m.0[(i, j)] = v;
-            Ok(())
-        },
-    );
     engine.register_indexer_get(|m: &mut Matrix, idx: Array| -> Rr<FLOAT> {
         if idx.len() != 2 {
             return Err(fail("matrix index: write A[[i, j]] with two indices"));
@@ -116,17 +75,6 @@ pub fn register(engine: &mut Engine) {
         let i = to_int_index(&idx[0], "matrix index", "i")?;
         let j = to_int_index(&idx[1], "matrix index", "j")?;
         entry(&m.0, i, j, "matrix index")
-    });
-    engine.register_fn("to_array", |m: &mut Matrix| -> Array {
-        (0..m.0.nrows())
-            .map(|i| {
-                Dynamic::from_array(
-                    (0..m.0.ncols())
-                        .map(|j| Dynamic::from_float(m.0[(i, j)]))
-                        .collect(),
-                )
-            })
-            .collect()
     });
     // Operators.
     engine.register_fn("+", |a: Matrix, b: Matrix| -> Rr<Matrix> {
@@ -153,6 +101,40 @@ pub fn register(engine: &mut Engine) {
 }
 
 crate::builtins! {
+    /// the entry in row i, column j (0-based)
+    ///
+    /// A[[i, j]] reads the same entry.
+    ///
+    /// example:
+    ///     matrix([[1, 2], [3, 4]]).get(1, 0)   // 3.0
+    #[family = "matrices"]
+    fn get(call, &mut A: Matrix, i: usize, j: usize) -> FLOAT {
+        entry(&A.0, i, j, call.name)
+    }
+
+    /// changes the entry in row i, column j (0-based), in place
+    ///
+    /// example:
+    ///     let A = identity(2);
+    ///     A.set(0, 1, 5);
+    #[family = "matrices"]
+    fn set(call, &mut A: Matrix, i: usize, j: usize, value: FLOAT) -> () {
+        entry(&A.0, i, j, call.name)?;
+        A.0[(i, j)] = value;
+        Ok(())
+    }
+
+    /// the entries as an array of rows of floats
+    ///
+    /// example:
+    ///     identity(2).to_array()
+    #[family = "matrices"]
+    fn to_array(call, &mut A: Matrix) -> Array {
+        Ok((0..A.0.nrows())
+            .map(|i| Dynamic::from_array((0..A.0.ncols()).map(|j| Dynamic::from_float(A.0[(i, j)])).collect()))
+            .collect())
+    }
+
     /// a matrix from an array of rows
     ///
     /// rows: an array of equally long arrays of numbers (ints or floats).
