@@ -3,6 +3,6 @@
 
 pub mod interconnect;
 pub mod lq;
-pub mod poles;
+pub mod pole_assignment;
 pub mod riccati;
 pub mod root_locus;

@@ -3,7 +3,7 @@
 //! operators `* + -`. The numerics are `crate::numeric::design` and
 //! `crate::numeric::linalg::sylvester`.
 
-use crate::numeric::design::{interconnect, lq, poles, riccati};
+use crate::numeric::design::{interconnect, lq, pole_assignment, riccati};
 use crate::numeric::linalg::sylvester;
 use crate::numeric::lti::system::StateSpace;
 use crate::numeric::lti::tf::TransferFunction as Tf;
@@ -393,7 +393,7 @@ crate::builtins! {
     ///     let K = assign_poles(plant, [complex(-1, 1), complex(-1, -1)]);
     #[family = "design"]
     fn assign_poles(call, sys: Model, poles: Poles) -> Matrix {
-        let r = poles::assign_poles(&sys.a, &sys.b, &poles.0).map_err(call.num())?;
+        let r = pole_assignment::assign_poles(&sys.a, &sys.b, &poles.0).map_err(call.num())?;
         if r.eigenvector_condition > POLE_CONDITION_WARNING {
             call.warn(format_args!(
                 "the closed-loop eigenvector matrix has condition number {:.2e}; the placed \
