@@ -5,7 +5,7 @@
 //! converted before the body runs, with errors that name the built-in and the argument.
 //! From that one declaration come the engine registration ([`Builtin::register`]), the
 //! help page ([`Builtin::doc`]), the call forms shown by `help` and REPL completion, and
-//! the checks in `tests/help_pages.rs`.
+//! the checks in `tests/all/help_pages.rs`.
 //!
 //! ```ignore
 //! builtins! {

@@ -11,7 +11,7 @@ use std::path::{Path, PathBuf};
 use std::process::{Child, Output, Stdio};
 use std::time::{Duration, Instant};
 
-mod common;
+use crate::common;
 use common::cli::{bin, repl_piped, temp_dir, text};
 
 /// `<tmp>/{project/, outside/}` with a victim file outside.
@@ -186,7 +186,7 @@ fn check_does_not_follow_a_linked_results_file() {
     symlink(&secret, project.join("a.results.json")).expect("link");
     let out = run_file(&file, &["check"]);
     assert_eq!(out.status.code(), Some(1));
-    let all = text(&out.stdout) + &text(&out.stderr);
+    let all = text(&out.stdout) + text(&out.stderr).as_str();
     assert!(!all.contains("TOP-SECRET"), "outside content shown: {all}");
     assert!(all.contains("symbolic link"), "{all}");
 }

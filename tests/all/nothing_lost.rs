@@ -4,7 +4,7 @@
 use std::path::{Path, PathBuf};
 use std::process::Output;
 
-mod common;
+use crate::common;
 use common::cli::{bin, text};
 
 fn temp_dir(name: &str) -> std::path::PathBuf {

@@ -11,7 +11,7 @@
 //! Tolerances are the fixture's own (`tolerance`, `per_key_tolerance`). The Riccati cases
 //! are checked in `tests/reference_design.rs`.
 
-mod common;
+use crate::common;
 
 use common::fixtures::{self, Tolerance};
 use serde_json::Value;

@@ -7,7 +7,7 @@
 //! interp=False our zoh), `scipy.signal.dlsim`, `scipy.integrate.solve_ivp` (DOP853,
 //! Radau) at rtol 1e-12. Tolerances are the fixture's own unless a comment says otherwise.
 
-mod common;
+use crate::common;
 
 use common::fixtures::{self, Tolerance};
 use nalgebra::DMatrix;

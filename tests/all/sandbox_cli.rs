@@ -5,7 +5,7 @@
 use std::path::{Path, PathBuf};
 use std::process::Output;
 
-mod common;
+use crate::common;
 use common::cli::bin;
 
 /// A fresh tree: `<tmp>/<name>/{project/, outside/}` with a model file outside.

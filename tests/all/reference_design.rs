@@ -3,7 +3,7 @@
 //! `scipy.linalg.solve_continuous_are` / `solve_discrete_are`, checked in the fixture
 //! against an mpmath invariant-subspace solution; tolerances are the fixture's own.
 
-mod common;
+use crate::common;
 
 use common::fixtures::{self, Tolerance};
 use nalgebra::Complex;

@@ -7,7 +7,7 @@ use std::path::{Path, PathBuf};
 use std::process::Output;
 use std::time::{Duration, Instant};
 
-mod common;
+use crate::common;
 use common::cli::{bin, temp_dir, text};
 
 fn folder(name: &str, files: &[(&str, &str)]) -> PathBuf {

@@ -2,7 +2,7 @@
 //! (numpy/scipy/mpmath; each case names the library call that produced it and why its
 //! tolerance is what it is — see tests/reference/README.md).
 
-mod common;
+use crate::common;
 
 use common::fixtures::{self as fx, case, cases_with_prefix, tolerance};
 use statebook::numeric::linalg::{dense, eigen, expm, logm, poly};

@@ -5,7 +5,7 @@ use statebook::script::output::Output;
 use statebook::{Session, SessionOptions};
 use std::path::Path;
 
-mod common;
+use crate::common;
 use common::cli::{bin, text};
 
 fn temp_dir(name: &str) -> std::path::PathBuf {

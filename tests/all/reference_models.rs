@@ -2,7 +2,7 @@
 //! Lyapunov solvers; first-principles constructions where scipy has no routine — each case
 //! says which).
 
-mod common;
+use crate::common;
 
 use common::fixtures::{self as fx, cases_with_prefix, tolerance, tolerance_for};
 use nalgebra::Complex;
