@@ -42,11 +42,11 @@ impl Completer for ReplHelper {
             return Ok((pos, Vec::new()));
         }
         let mut out: Vec<Pair> = Vec::new();
-        for d in crate::script::docs::all() {
-            if d.name.starts_with(word) {
+        for (name, summary) in crate::script::docs::names() {
+            if name.starts_with(word) {
                 out.push(Pair {
-                    display: format!("{:28} {}", d.name, d.summary),
-                    replacement: d.name.to_string(),
+                    display: format!("{name:28} {summary}"),
+                    replacement: name.to_string(),
                 });
             }
         }

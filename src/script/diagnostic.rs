@@ -325,12 +325,11 @@ fn suggestions(name: &str) -> Vec<String> {
     if name.len() < 3 {
         return Vec::new();
     }
-    let mut v: Vec<(usize, String)> = crate::script::docs::all()
-        .iter()
-        .filter_map(|d| {
-            let dist = edit_distance(name, d.name);
-            (dist <= 2 || (d.name.starts_with(name) && name.len() >= 4))
-                .then(|| (dist, d.name.to_string()))
+    let mut v: Vec<(usize, String)> = crate::script::docs::names()
+        .into_iter()
+        .filter_map(|(n, _)| {
+            let dist = edit_distance(name, n);
+            (dist <= 2 || (n.starts_with(name) && name.len() >= 4)).then(|| (dist, n.to_string()))
         })
         .collect();
     v.sort();

@@ -49,6 +49,30 @@ pub fn all() -> Vec<Doc> {
     v
 }
 
+/// Every name `help` knows, with the summary of its page: the page names, and the further
+/// names a declared page groups (`successes` and `filter` on the page `failures`). Drives
+/// REPL completion and "did you mean".
+pub fn names() -> Vec<(&'static str, &'static str)> {
+    let pages = all();
+    let mut v: Vec<(&'static str, &'static str)> =
+        pages.iter().map(|d| (d.name, d.summary)).collect();
+    for table in super::builtins::DECLARED {
+        for b in table.iter() {
+            let summary = pages
+                .iter()
+                .find(|d| d.name == b.name)
+                .map(|d| d.summary)
+                .unwrap_or("");
+            for f in b.forms.iter().filter(|f| f.name != b.name) {
+                v.push((f.name, summary));
+            }
+        }
+    }
+    v.sort_unstable();
+    v.dedup_by(|a, b| a.0 == b.0);
+    v
+}
+
 /// The documentation of one name, if any: the page of that name, or else the page whose
 /// usage or details show it as a property or method (`sys.dt` is on the page of `A`,
 /// `table.logs` on the page of `Table`).

@@ -3,8 +3,8 @@
 //! references (fixtures in `tests/reference/`); `suite` runs every `tests/suite/**.sbook`;
 //! `security_*`, `safety_limits` and `sandbox_cli` drive the real binary on hostile input.
 
-mod common;
 mod cli;
+mod common;
 mod freq_accuracy;
 mod fuzz_file_inputs;
 mod fuzz_regressions;
