@@ -81,21 +81,21 @@ proptest! {
 
     #[test]
     fn transforms_keep_behaviour_and_spectrum((sys, t) in case()) {
-        let (moved, _) = transform::transform_state(&sys, &t).unwrap();
+        let moved = transform::transform_state(&sys, &t).unwrap().system;
         same_behaviour(&sys, &moved)?;
         same_spectrum(&sys.a, &moved.a)?;
         let m = modal::modal_realization(&sys).unwrap();
-        same_behaviour(&sys, &m.system)?;
-        same_spectrum(&sys.a, &m.system.a)?;
+        same_behaviour(&sys, &m.form.system)?;
+        same_spectrum(&sys.a, &m.form.system.a)?;
         if let Ok(b) = balance::balanced_realization(&sys.a, &sys.b, &sys.c, &sys.d, 0.0) {
             let bs = StateSpace::new(b.a, b.b, b.c, b.d, 0.0).unwrap();
             same_behaviour(&sys, &bs)?;
         }
         if sys.inputs() == 1 && sys.outputs() == 1 {
-            if let Ok((c, _, _)) = realize::controllable_companion(&sys) {
+            if let Ok(c) = realize::controllable_companion(&sys).map(|t| t.system) {
                 same_behaviour(&sys, &c)?;
             }
-            if let Ok((o, _, _)) = realize::observable_companion(&sys) {
+            if let Ok(o) = realize::observable_companion(&sys).map(|t| t.system) {
                 same_behaviour(&sys, &o)?;
             }
         }
@@ -103,7 +103,7 @@ proptest! {
 
     #[test]
     fn equivalence_holds_and_transform_is_recovered((sys, t) in case()) {
-        let (moved, _) = transform::transform_state(&sys, &t).unwrap();
+        let moved = transform::transform_state(&sys, &t).unwrap().system;
         let e = equivalence(&sys, &moved).unwrap();
         prop_assert!(e.equivalent, "{}", e.reason);
         if let Ok(found) = find_transform(&sys, &moved) {

@@ -333,7 +333,7 @@ fn planted_uncontrollable_and_unobservable_states_are_found_at_every_scale() {
     // An exactly invertible integer T (det 1): x₀ = T x.
     let t = DMatrix::from_row_slice(3, 3, &[1.0, 1.0, 0.0, 0.0, 1.0, 1.0, 1.0, 1.0, 2.0]);
     let base = StateSpace::new(a0, b0, c0, DMatrix::zeros(1, 1), 0.0).unwrap();
-    let (hidden, _) = transform_state(&base, &t).unwrap();
+    let hidden = transform_state(&base, &t).unwrap().system;
     for s in scalings(3) {
         let x = scaled(&hidden, &s);
         let min = minimal_realization(&x.a, &x.b, &x.c, &x.d, None).unwrap();
@@ -360,7 +360,7 @@ fn find_transform_recovers_a_badly_scaled_diagonal_transform() {
     let base = siso(&[-1.0, 2.0, -3.0, -4.0], &[1.0, 1.0], &[1.0, 0.5]);
     let k = 2f64.powi(13);
     let t = DMatrix::from_row_slice(2, 2, &[1.0 / k, 0.0, 0.0, k]);
-    let (other, _) = transform_state(&base, &t).unwrap();
+    let other = transform_state(&base, &t).unwrap().system;
     let got = find_transform(&base, &other).unwrap();
     // Entry errors measured at the scale of their row and column, √(t_ii·t_jj) (the
     // error of T̃ = S⁻¹ T S' between the balanced forms, carried back).
@@ -504,14 +504,15 @@ fn companion_forms_of_scaled_models_are_not_refused() {
     let base = siso(&[-1.0, 2.0, -3.0, -4.0], &[1.0, 1.0], &[1.0, 0.5]);
     for s in [[1e7, 1e-7], [1e-7, 1e7], [1.0, 1.0]] {
         let x = scaled(&base, &s);
-        let (cf, _, cond) = controllable_companion(&x).unwrap();
-        assert!(cond.is_finite() && cond >= 1.0);
+        let tr = controllable_companion(&x).unwrap();
+        assert!(tr.condition.is_finite() && tr.condition >= 1.0);
+        let cf = tr.system;
         assert!(
             rel(cf.a[(0, 0)], -5.0) < 1e-8 && rel(cf.a[(0, 1)], -10.0) < 1e-8,
             "{}",
             cf.a
         );
-        let (of, _, _) = observable_companion(&x).unwrap();
+        let of = observable_companion(&x).unwrap().system;
         assert!(
             rel(of.a[(0, 0)], -5.0) < 1e-8 && rel(of.a[(1, 0)], -10.0) < 1e-8,
             "{}",
@@ -567,7 +568,7 @@ fn issue13_pairs_related_by_ill_conditioned_integer_transforms_are_equivalent() 
             continue;
         }
         worst_condition = worst_condition.max(cond);
-        let (other, _) = transform_state(&base, &t).unwrap();
+        let other = transform_state(&base, &t).unwrap().system;
         let e = equivalence(&base, &other).unwrap();
         assert!(
             e.equivalent && e.margin <= 1.0,
@@ -622,7 +623,7 @@ fn near_miss_pairs_stay_not_equivalent_under_ill_conditioned_transforms() {
             let mut gain = base.clone();
             gain.c *= 1.0 + delta;
             for (what, changed) in [("poles moved", &moved), ("gain", &gain)] {
-                let (other, _) = transform_state(changed, &t).unwrap();
+                let other = transform_state(changed, &t).unwrap().system;
                 let e = equivalence(&base, &other).unwrap();
                 if (delta > 1e-5 && cond <= 1e6) || cond <= 1e4 {
                     assert!(
@@ -835,11 +836,11 @@ fn modal_realizations_of_scaled_models_keep_the_transfer_function() {
             let label = format!("case {case} (n = {n}), scaling {si}");
             match modal_realization(&x) {
                 Ok(m) => {
-                    let e = equivalence(&sys, &m.system).expect("equivalence runs");
+                    let e = equivalence(&sys, &m.form.system).expect("equivalence runs");
                     if !e.equivalent {
                         bad.push(format!("{label}: {}", e.reason));
                     }
-                    let pm = sorted_poles(&m.system);
+                    let pm = sorted_poles(&m.form.system);
                     let moved = p0
                         .iter()
                         .zip(&pm)
@@ -884,13 +885,13 @@ fn every_change_of_coordinates_of_a_scaled_model_keeps_the_transfer_function() {
             results.push((
                 "controllable companion",
                 controllable_companion(&x)
-                    .map(|r| r.0)
+                    .map(|r| r.system)
                     .map_err(|e| e.to_string()),
             ));
             results.push((
                 "observable companion",
                 observable_companion(&x)
-                    .map(|r| r.0)
+                    .map(|r| r.system)
                     .map_err(|e| e.to_string()),
             ));
             results.push((

@@ -589,7 +589,7 @@ fn recover_balanced(a: &StateSpace, b: &StateSpace) -> NumResult<DMatrix<f64>> {
             rcond: rc,
         });
     }
-    let (tb, _) = transform_state(a, &t)?;
+    let tb = transform_state(a, &t)?.system;
     let err = (&tb.a - &b.a).norm() / (1.0 + b.a.norm())
         + (&tb.b - &b.b).norm() / (1.0 + b.b.norm())
         + (&tb.c - &b.c).norm() / (1.0 + b.c.norm());
@@ -629,7 +629,7 @@ mod tests {
                 0.0
             }
         });
-        transform_state(&sys, &(g * d)).unwrap().0
+        transform_state(&sys, &(g * d)).unwrap().system
     }
 
     #[test]
@@ -669,7 +669,7 @@ mod tests {
         )
         .unwrap();
         let t = DMatrix::from_row_slice(3, 3, &[1.0, 1e3, 0.0, 0.0, 1.0, 1e3, 0.0, 0.0, 1.0]);
-        let copy = transform_state(&a, &t).unwrap().0;
+        let copy = transform_state(&a, &t).unwrap().system;
         let r = minimal_checked(&copy, None).unwrap();
         assert!(r.minimal.removed > 0, "the case under test removes states");
         let e = r
@@ -688,7 +688,7 @@ mod tests {
         for &n in &[1usize, 2, 4, 8, 20] {
             let a = stable(&mut rng, n, 2, 2);
             let t = rng.matrix(n, n) + DMatrix::identity(n, n) * 2.5;
-            let (b, _) = transform_state(&a, &t).unwrap();
+            let b = transform_state(&a, &t).unwrap().system;
             let eq = equivalence(&a, &b).unwrap();
             assert!(eq.equivalent, "n = {n}: {}", eq.reason);
             let got = eq.transform.expect("transform");

@@ -11,7 +11,7 @@
 
 use super::properties::snap;
 use super::system::StateSpace;
-use super::transform::{condition_warning, rcond};
+use super::transform::{rcond, rcond_up_to_state_units, Transformed};
 use crate::numeric::linalg::dense::balance_reducing_norm;
 use crate::numeric::linalg::eigen::eigenvalues_with_bounds;
 use crate::numeric::linalg::schur::{block_eigenvalue, RealSchur};
@@ -32,12 +32,9 @@ pub const NEARLY_DEFECTIVE: f64 = 1e-6;
 /// A modal (or Jordan) realization and its transform.
 #[derive(Debug, Clone)]
 pub struct Modal {
-    /// The new model (x = T z).
-    pub system: StateSpace,
-    /// The transform.
-    pub t: DMatrix<f64>,
-    /// cond₂(T).
-    pub condition: f64,
+    /// The new model (x = T z) with `T`, `T⁻¹` and the condition of `T` up to the units of
+    /// the states.
+    pub form: Transformed,
     /// Sizes of the diagonal blocks in order.
     pub blocks: Vec<usize>,
     /// Numerical-health warnings (coupled clusters, ill-conditioning).
@@ -47,9 +44,12 @@ pub struct Modal {
 /// A model without states is its own modal and Jordan realization (empty transform).
 fn stateless(sys: &StateSpace) -> Modal {
     Modal {
-        system: sys.clone(),
-        t: DMatrix::zeros(0, 0),
-        condition: 1.0,
+        form: Transformed {
+            system: sys.clone(),
+            t: DMatrix::zeros(0, 0),
+            t_inv: DMatrix::zeros(0, 0),
+            condition: 1.0,
+        },
         blocks: Vec::new(),
         warnings: Vec::new(),
     }
@@ -214,10 +214,12 @@ fn assemble(sys: &StateSpace, d: Decoupled, what: &str) -> NumResult<Modal> {
         });
     }
     let lu = d.basis.clone().lu();
-    let b = lu.solve(&sys.b).ok_or_else(|| NumError::Singular {
+    let singular = || NumError::Singular {
         what: format!("{what}: the modal basis"),
         rcond: rc,
-    })?;
+    };
+    let b = lu.solve(&sys.b).ok_or_else(singular)?;
+    let t_inv = lu.solve(&DMatrix::identity(n, n)).ok_or_else(singular)?;
     let c = &sys.c * &d.basis;
     let mut a = d.t.clone();
     // Exactly block diagonal: clear the rounding left outside the blocks.
@@ -236,12 +238,17 @@ fn assemble(sys: &StateSpace, d: Decoupled, what: &str) -> NumResult<Modal> {
     onto_boundary(&mut a, &d.blocks, sys, what, &mut warnings)?;
     let mut system = sys.with_matrices(a, b, c, sys.d.clone())?;
     system.names.states.clear();
-    let condition = if rc > 0.0 { 1.0 / rc } else { f64::INFINITY };
-    warnings.extend(condition_warning(what, condition));
+    // The basis is judged up to the units of the states (its rows): a model with badly
+    // scaled states has an accurate modal form (computed in balanced coordinates).
+    let rcu = rcond_up_to_state_units(&d.basis, true);
+    let condition = if rcu > 0.0 { 1.0 / rcu } else { f64::INFINITY };
     Ok(Modal {
-        system,
-        t: d.basis,
-        condition,
+        form: Transformed {
+            system,
+            t: d.basis,
+            t_inv,
+            condition,
+        },
         blocks: d.blocks.iter().map(|&(_, k)| k).collect(),
         warnings,
     })
@@ -592,9 +599,9 @@ mod tests {
             let t = DMatrix::from_diagonal(&nalgebra::DVector::from_vec(vec![1.0, s, 1.0 / s, s]));
             let scaled = crate::numeric::lti::transform::transform_state(&sys, &t)
                 .unwrap()
-                .0;
+                .system;
             let m = modal_realization(&scaled).unwrap();
-            let d = m.system.a.diagonal();
+            let d = m.form.system.a.diagonal();
             let zeros = d.iter().filter(|&&x| x == 0.0).count();
             assert_eq!(zeros, 1, "scaling 1e{e}: diagonal {d:?}");
             noted += m
@@ -602,7 +609,7 @@ mod tests {
                 .iter()
                 .filter(|w| w.contains("rounding error"))
                 .count();
-            let v = crate::numeric::lti::equivalence::equivalence(&scaled, &m.system).unwrap();
+            let v = crate::numeric::lti::equivalence::equivalence(&scaled, &m.form.system).unwrap();
             assert!(v.equivalent, "scaling 1e{e}: {}", v.reason);
         }
         assert!(noted >= 1, "a moved pole is noted");
@@ -615,7 +622,7 @@ mod tests {
         )
         .unwrap();
         let m = modal_realization(&slow).unwrap();
-        assert!(m.system.a.diagonal().iter().any(|&x| x == -1e-7));
+        assert!(m.form.system.a.diagonal().iter().any(|&x| x == -1e-7));
         assert!(m.warnings.is_empty());
     }
 
@@ -625,7 +632,7 @@ mod tests {
         for &n in &[1usize, 2, 3, 6, 10] {
             let sys = model(rng.matrix(n, n), &mut rng);
             let m = modal_realization(&sys).unwrap();
-            let a = &m.system.a;
+            let a = &m.form.system.a;
             let mut at = 0;
             for &k in &m.blocks {
                 if k == 2 {
@@ -644,7 +651,7 @@ mod tests {
                 prev = a[(at, at)];
                 at += k;
             }
-            same_markov(&sys, &m.system);
+            same_markov(&sys, &m.form.system);
         }
     }
 
@@ -657,13 +664,13 @@ mod tests {
         let a = DMatrix::from_row_slice(2, 2, &[-1.0, -0.9, 1.2e-16, -1.0]);
         let sys = model(a, &mut rng);
         let jr = jordan_realization(&sys).unwrap();
-        let ja = &jr.system.a;
+        let ja = &jr.form.system.a;
         assert_eq!(jr.blocks, vec![2], "{ja}");
         assert!(
             (ja[(0, 0)] + 1.0).abs() < 1e-12 && (ja[(0, 1)] - 1.0).abs() < 1e-12,
             "{ja}"
         );
-        same_markov(&sys, &jr.system);
+        same_markov(&sys, &jr.form.system);
     }
 
     #[test]
@@ -681,11 +688,15 @@ mod tests {
             complex_splits += ev.iter().any(|z| z.im.abs() > NEARLY_DEFECTIVE * 3.0) as usize;
             let sys = model(a, &mut rng);
             let jr = jordan_realization(&sys).unwrap_or_else(|e| panic!("seed {seed}: {e}"));
-            assert_eq!(jr.blocks, vec![3], "seed {seed}: {}", jr.system.a);
+            assert_eq!(jr.blocks, vec![3], "seed {seed}: {}", jr.form.system.a);
             for i in 0..3 {
-                assert!((jr.system.a[(i, i)] + 2.0).abs() < 1e-4, "{}", jr.system.a);
+                assert!(
+                    (jr.form.system.a[(i, i)] + 2.0).abs() < 1e-4,
+                    "{}",
+                    jr.form.system.a
+                );
             }
-            same_markov(&sys, &jr.system);
+            same_markov(&sys, &jr.form.system);
         }
         // The sweep must contain the case that used to be refused.
         assert!(complex_splits > 0, "no seed split into a complex pair");
@@ -702,13 +713,13 @@ mod tests {
         let m = modal_realization(&sys).unwrap();
         assert_eq!(m.blocks, vec![1, 2]);
         assert!(!m.warnings.is_empty());
-        same_markov(&sys, &m.system);
+        same_markov(&sys, &m.form.system);
         let jr = jordan_realization(&sys).unwrap();
-        let ja = &jr.system.a;
+        let ja = &jr.form.system.a;
         assert!(
             (ja[(1, 1)] + 1.0).abs() < 1e-6 && (ja[(1, 2)] - 1.0).abs() < 1e-9,
             "{ja}"
         );
-        same_markov(&sys, &jr.system);
+        same_markov(&sys, &jr.form.system);
     }
 }

@@ -4,7 +4,7 @@
 use super::staircase::{balance_system, is_controllable, is_observable, minimal_realization};
 use super::system::StateSpace;
 use super::tf::TransferFunction;
-use super::transform::rcond;
+use super::transform::{rcond_up_to_state_units, Transformed};
 use super::zeros::transmission_zeros;
 use crate::numeric::linalg::eigen::eigenvalues;
 use crate::numeric::linalg::poly::{characteristic_polynomial, polynomial_from_roots};
@@ -147,33 +147,6 @@ fn require_siso(sys: &StateSpace, what: &str) -> NumResult<()> {
     Ok(())
 }
 
-/// The reciprocal condition of a basis up to the units of the states: `rcond(D·t)` with
-/// `D` scaling each row (`rows`, for `x = T z`) or `rcond(t·D)` each column (for `z = S x`)
-/// to unit 2-norm by a power of two. A diagonal change of state units alone changes `T` by
-/// exactly such a `D`, and the companion form computed from it not at all, so neither the
-/// refusal nor the warning may depend on it (with states spread over 1e±6 the raw
-/// condition overflows to a refusal).
-fn rcond_up_to_state_units(t: &DMatrix<f64>, rows: bool) -> f64 {
-    let mut e = t.clone();
-    let n = if rows { e.nrows() } else { e.ncols() };
-    for k in 0..n {
-        let norm = if rows {
-            e.row(k).norm()
-        } else {
-            e.column(k).norm()
-        };
-        if norm > 0.0 && norm.is_finite() {
-            let f = 2f64.powi(-(norm.log2().round() as i32));
-            if rows {
-                e.row_mut(k).scale_mut(f);
-            } else {
-                e.column_mut(k).scale_mut(f);
-            }
-        }
-    }
-    rcond(&e)
-}
-
 /// The controllable companion realization of a SISO model and its `T` (x = T z).
 ///
 /// With the characteristic polynomial `sⁿ + a₁sⁿ⁻¹ + … + aₙ` (from a Hessenberg
@@ -183,8 +156,8 @@ fn rcond_up_to_state_units(t: &DMatrix<f64>, rows: bool) -> f64 {
 /// closes it). Requires a controllable model, decided by the staircase on the balanced
 /// system matrix ([`is_controllable`]), so a change of state units alone never refuses it.
 /// Companion forms are inherently ill-conditioned for large n or badly scaled states; the
-/// condition number of `T` is returned for a warning.
-pub fn controllable_companion(sys: &StateSpace) -> NumResult<(StateSpace, DMatrix<f64>, f64)> {
+/// condition number of `T` (up to the units of the states) is returned for a warning.
+pub fn controllable_companion(sys: &StateSpace) -> NumResult<Transformed> {
     require_siso(sys, "controllable_realization")?;
     let n = sys.order();
     let a = characteristic_polynomial(&sys.a)?;
@@ -222,8 +195,18 @@ pub fn controllable_companion(sys: &StateSpace) -> NumResult<(StateSpace, DMatri
     });
     let bc = DMatrix::from_fn(n, 1, |i, _| if i == 0 { 1.0 } else { 0.0 });
     let cc = &sys.c * &t;
-    let new = sys.with_matrices(ac, bc, cc, sys.d.clone())?;
-    Ok((new, t, 1.0 / rc))
+    let t_inv = t.clone().try_inverse().ok_or_else(|| NumError::Singular {
+        what: "T".into(),
+        rcond: rc,
+    })?;
+    let mut new = sys.with_matrices(ac, bc, cc, sys.d.clone())?;
+    new.names.states.clear();
+    Ok(Transformed {
+        system: new,
+        t,
+        t_inv,
+        condition: 1.0 / rc,
+    })
 }
 
 /// The observable companion realization of a SISO model and its `T` (x = T z).
@@ -231,7 +214,7 @@ pub fn controllable_companion(sys: &StateSpace) -> NumResult<(StateSpace, DMatri
 /// Dual of [`controllable_companion`]: `S = T⁻¹` has rows `s₁ = C`, `s_{k+1} = s_k A +
 /// a_k C`, giving `T⁻¹AT` with first column `[−a₁ … −aₙ]ᵀ` and ones above the diagonal,
 /// and `CT = e₁ᵀ`. Requires an observable model ([`is_observable`], balanced).
-pub fn observable_companion(sys: &StateSpace) -> NumResult<(StateSpace, DMatrix<f64>, f64)> {
+pub fn observable_companion(sys: &StateSpace) -> NumResult<Transformed> {
     require_siso(sys, "observable_realization")?;
     let n = sys.order();
     let a = characteristic_polynomial(&sys.a)?;
@@ -270,6 +253,12 @@ pub fn observable_companion(sys: &StateSpace) -> NumResult<(StateSpace, DMatrix<
     });
     let bo = &s * &sys.b;
     let co = DMatrix::from_fn(1, n, |_, j| if j == 0 { 1.0 } else { 0.0 });
-    let new = sys.with_matrices(ao, bo, co, sys.d.clone())?;
-    Ok((new, t, 1.0 / rc))
+    let mut new = sys.with_matrices(ao, bo, co, sys.d.clone())?;
+    new.names.states.clear();
+    Ok(Transformed {
+        system: new,
+        t,
+        t_inv: s,
+        condition: 1.0 / rc,
+    })
 }

@@ -21,15 +21,65 @@ pub fn rcond(t: &DMatrix<f64>) -> f64 {
     }
 }
 
+/// The reciprocal condition of a basis up to the units of the states: `rcond(D·t)` with
+/// `D` scaling each row (`rows`, for `x = T z`) or `rcond(t·D)` each column (for `z = S x`)
+/// to unit 2-norm by a power of two. A diagonal change of state units alone changes `T` by
+/// exactly such a `D`, and the companion form computed from it not at all, so neither the
+/// refusal nor the warning may depend on it (with states spread over 1e±6 the raw
+/// condition overflows to a refusal). Used by the companion and modal forms.
+pub(crate) fn rcond_up_to_state_units(t: &DMatrix<f64>, rows: bool) -> f64 {
+    let mut e = t.clone();
+    let n = if rows { e.nrows() } else { e.ncols() };
+    for k in 0..n {
+        let norm = if rows {
+            e.row(k).norm()
+        } else {
+            e.column(k).norm()
+        };
+        if norm > 0.0 && norm.is_finite() {
+            let f = 2f64.powi(-(norm.log2().round() as i32));
+            if rows {
+                e.row_mut(k).scale_mut(f);
+            } else {
+                e.column_mut(k).scale_mut(f);
+            }
+        }
+    }
+    rcond(&e)
+}
+
 /// Condition number above which a transform earns a warning.
 pub const WARN_CONDITION: f64 = 1e8;
 
+/// A change of state coordinates `x = T z` and the model in the new coordinates: what every
+/// coordinate change of `lti` returns (`transform_state`, the companion, modal and Jordan
+/// forms), so that callers read the model, `T`, `T⁻¹` and the conditioning one way.
+#[derive(Debug, Clone)]
+pub struct Transformed {
+    /// The model in the new coordinates, `(T⁻¹AT, T⁻¹B, CT, D)`.
+    pub system: StateSpace,
+    /// `T` (old state `x = T z`).
+    pub t: DMatrix<f64>,
+    /// `T⁻¹` (`z = T⁻¹ x`).
+    pub t_inv: DMatrix<f64>,
+    /// The condition number of `T` that bounds the rounding the change adds (for a basis
+    /// built from the model, taken up to the units of the states where the method says so).
+    pub condition: f64,
+}
+
+impl Transformed {
+    /// The warning for an ill-conditioned change of coordinates, if any ([`WARN_CONDITION`]).
+    pub fn warning(&self, what: &str) -> Option<String> {
+        condition_warning(what, self.condition)
+    }
+}
+
 /// Applies `x = T z`. Refuses a `T` of the wrong size, with non-finite entries, or
 /// numerically singular (reciprocal condition below n·ε, judged by the SVD — LU's
-/// pivots miss exactly singular matrices). Returns the new model and cond₂(T) so the
-/// caller can warn above [`WARN_CONDITION`]. T⁻¹ is applied by LU solves, not by forming
-/// the inverse. Cost O(n³).
-pub fn transform_state(sys: &StateSpace, t: &DMatrix<f64>) -> NumResult<(StateSpace, f64)> {
+/// pivots miss exactly singular matrices). Returns the new model with `T`, `T⁻¹` and
+/// cond₂(T) so the caller can warn above [`WARN_CONDITION`]. T⁻¹ is applied to the model
+/// by LU solves, not by multiplying with the formed inverse. Cost O(n³).
+pub fn transform_state(sys: &StateSpace, t: &DMatrix<f64>) -> NumResult<Transformed> {
     let n = sys.order();
     if t.nrows() != n || t.ncols() != n {
         return Err(NumError::shape(
@@ -56,9 +106,15 @@ pub fn transform_state(sys: &StateSpace, t: &DMatrix<f64>) -> NumResult<(StateSp
     let a = solve(&(&sys.a * t))?;
     let b = solve(&sys.b)?;
     let c = &sys.c * t;
+    let t_inv = solve(&DMatrix::identity(n, n))?;
     let mut out = sys.with_matrices(a, b, c, sys.d.clone())?;
     out.names.states.clear();
-    Ok((out, if rc > 0.0 { 1.0 / rc } else { f64::INFINITY }))
+    Ok(Transformed {
+        system: out,
+        t: t.clone(),
+        t_inv,
+        condition: if rc > 0.0 { 1.0 / rc } else { f64::INFINITY },
+    })
 }
 
 /// The warning for an ill-conditioned transform, if cond(T) exceeds the threshold.
@@ -89,8 +145,11 @@ mod tests {
         )
         .unwrap();
         let t = rng.matrix(4, 4) + DMatrix::identity(4, 4) * 3.0;
-        let (new, cond) = transform_state(&sys, &t).unwrap();
-        assert!(cond < 1e3);
+        let tr = transform_state(&sys, &t).unwrap();
+        assert!(tr.condition < 1e3);
+        let err = (&tr.t * &tr.t_inv - DMatrix::<f64>::identity(4, 4)).norm();
+        assert!(err < 1e-12, "T·T⁻¹ − I = {err:e}");
+        let new = tr.system;
         for (p, q) in sys
             .markov_parameters(6)
             .iter()

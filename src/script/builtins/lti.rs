@@ -127,6 +127,15 @@ fn realization(system: StateSpace, t: DMatrix<f64>) -> Map {
     m
 }
 
+/// The map `#{ system, transform }` of a change of coordinates, warning when `T` is
+/// ill-conditioned: the one way every coordinate change reaches a script.
+fn transformed(call: &Call, tr: transform::Transformed) -> Map {
+    if let Some(w) = tr.warning(call.name) {
+        state::warn(call.ctx(), w);
+    }
+    realization(tr.system, tr.t)
+}
+
 fn names_of(call: &Call, v: &Dynamic, what: &str, count: usize) -> Rr<Vec<String>> {
     let Some(a) = v.read_lock::<Array>() else {
         return Err(call.fail(format_args!("{what} must be an array of strings")));
@@ -445,9 +454,11 @@ crate::builtins! {
     ///     transform_state(plant, [[1, 0], [1, 1]])
     #[family = "transforms"]
     fn transform_state(call, sys: Model, T: DMatrix<f64>) -> Dynamic as "System" {
-        let (new, cond) = transform::transform_state(&sys, &T).map_err(call.num())?;
-        warn_condition(&call, cond);
-        Ok(system_value(new))
+        let tr = transform::transform_state(&sys, &T).map_err(call.num())?;
+        if let Some(w) = tr.warning(call.name) {
+            state::warn(call.ctx(), w);
+        }
+        Ok(system_value(tr.system))
     }
 
     /// real block-diagonal form: real poles on the diagonal, pairs as [[σ, ω], [−ω, σ]]
@@ -464,7 +475,7 @@ crate::builtins! {
     fn modal_realization(call, sys: Model) -> Map as "#{ system, transform }" {
         let m = modal::modal_realization(&sys).map_err(call.num())?;
         warn_all(&call, &m.warnings);
-        Ok(realization(m.system, m.t))
+        Ok(transformed(&call, m.form))
     }
 
     /// controllable companion form (SISO): first row −a₁…−aₙ, B = e₁
@@ -476,9 +487,8 @@ crate::builtins! {
     ///     controllable_realization(plant).system
     #[family = "transforms"]
     fn controllable_realization(call, sys: Model) -> Map as "#{ system, transform }" {
-        let (sys, t, cond) = realize::controllable_companion(&sys).map_err(call.num())?;
-        warn_condition(&call, cond);
-        Ok(realization(sys, t))
+        let tr = realize::controllable_companion(&sys).map_err(call.num())?;
+        Ok(transformed(&call, tr))
     }
 
     /// observable companion form (SISO): first column −a₁…−aₙ, C = e₁ᵀ
@@ -490,9 +500,8 @@ crate::builtins! {
     ///     observable_realization(plant).system
     #[family = "transforms"]
     fn observable_realization(call, sys: Model) -> Map as "#{ system, transform }" {
-        let (sys, t, cond) = realize::observable_companion(&sys).map_err(call.num())?;
-        warn_condition(&call, cond);
-        Ok(realization(sys, t))
+        let tr = realize::observable_companion(&sys).map_err(call.num())?;
+        Ok(transformed(&call, tr))
     }
 
     /// real Jordan form (always warns: the Jordan structure is numerically fragile)
@@ -506,7 +515,7 @@ crate::builtins! {
     fn jordan_realization(call, sys: Model) -> Map as "#{ system, transform }" {
         let m = modal::jordan_realization(&sys).map_err(call.num())?;
         warn_all(&call, &m.warnings);
-        Ok(realization(m.system, m.t))
+        Ok(transformed(&call, m.form))
     }
 
     /// balanced form: both Gramians equal diag(Hankel singular values)
