@@ -28,9 +28,10 @@
 
 use nalgebra::{Complex, DMatrix};
 use serde_json::{json, Map, Value};
+use statebook::numeric::design::lyapunov::solve_lyapunov;
 use statebook::numeric::design::riccati::solve_riccati;
 use statebook::numeric::freq::response::{dense_point, FrequencyEvaluator};
-use statebook::numeric::linalg::{eigen, expm::expm, sylvester::solve_lyapunov};
+use statebook::numeric::linalg::{eigen, expm::expm};
 use statebook::numeric::lti::system::StateSpace;
 use statebook::numeric::time::simulate::{simulate, SimulationOptions};
 use std::hint::black_box;

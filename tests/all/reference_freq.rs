@@ -15,10 +15,10 @@ use crate::common;
 
 use common::fixtures::{self, Tolerance};
 use serde_json::Value;
+use statebook::numeric::design::lyapunov::{solve_lyapunov, solve_lyapunov_discrete};
 use statebook::numeric::freq::margins::loop_margins;
 use statebook::numeric::freq::norms::{h2_norm, hinf_norm};
 use statebook::numeric::freq::response::{dense_point, frequency_response, point_of};
-use statebook::numeric::linalg::sylvester::{solve_lyapunov, solve_lyapunov_discrete};
 use statebook::numeric::lti::realize::from_transfer_function;
 use statebook::numeric::lti::system::StateSpace;
 use statebook::numeric::lti::tf::TransferFunction;

@@ -9,10 +9,9 @@
 //! discrete form).
 
 use nalgebra::DMatrix;
+use statebook::numeric::design::lyapunov::{solve_lyapunov, solve_lyapunov_discrete};
 use statebook::numeric::error::NumError;
-use statebook::numeric::linalg::sylvester::{
-    solve_lyapunov, solve_lyapunov_discrete, solve_sylvester,
-};
+use statebook::numeric::linalg::sylvester::solve_sylvester;
 use statebook::numeric::lti::balance::controllability_gramian;
 
 fn rel(a: f64, b: f64) -> f64 {

@@ -3,6 +3,7 @@
 
 pub mod interconnect;
 pub mod lq;
+pub mod lyapunov;
 pub mod pole_assignment;
 pub mod riccati;
 pub mod root_locus;

@@ -12,13 +12,12 @@
 //! the eigenvalues of `A`, run when the solver fails).
 
 use crate::numeric::check;
+use crate::numeric::design::lyapunov::{solve_lyapunov, solve_lyapunov_discrete};
 use crate::numeric::error::{NumError, NumResult};
 use crate::numeric::linalg::dense::singular_values;
 use crate::numeric::linalg::eigen::eigenvalues;
 use crate::numeric::linalg::schur::RealSchur;
-use crate::numeric::linalg::sylvester::{
-    fmt_complex, solve_lyapunov, solve_lyapunov_discrete, symmetric_part,
-};
+use crate::numeric::linalg::sylvester::{fmt_complex, symmetric_part};
 use nalgebra::{Cholesky, Complex, DMatrix, Dyn, SymmetricEigen};
 
 mod continuous;

@@ -403,7 +403,7 @@ fn real_upper_factor(x: &DMatrix<C64>) -> DMatrix<f64> {
 mod tests {
     use super::*;
     use crate::assert_close;
-    use crate::numeric::linalg::sylvester::{solve_lyapunov, solve_lyapunov_discrete};
+    use crate::numeric::design::lyapunov::{solve_lyapunov, solve_lyapunov_discrete};
     use crate::numeric::testing::Rng;
 
     const SIZES: [usize; 6] = [0, 1, 2, 3, 10, 40];

@@ -14,14 +14,13 @@
 //! Gramians equal to `diag(σ)`.
 
 use crate::numeric::check;
+use crate::numeric::design::lyapunov::{solve_lyapunov_discrete_with, solve_lyapunov_with};
 use crate::numeric::error::{NumError, NumResult};
 use crate::numeric::linalg::hammarling::{
     lyapunov_cholesky_discrete_with, lyapunov_cholesky_with, stability_violation,
 };
 use crate::numeric::linalg::schur::{block_eigenvalue, quasi_blocks};
-use crate::numeric::linalg::sylvester::{
-    real_schur, solve_lyapunov_discrete_with, solve_lyapunov_with, MatrixEquationParams,
-};
+use crate::numeric::linalg::sylvester::{real_schur, MatrixEquationParams};
 use nalgebra::{Complex, DMatrix, SVD};
 
 /// Tolerances of balancing and balanced truncation.
@@ -91,7 +90,7 @@ pub struct Truncated {
 /// when `(A, B)` is not controllable.
 ///
 /// **Algorithm.** A stability check on the real Schur form, then
-/// [`crate::numeric::linalg::sylvester::solve_lyapunov`] (Bartels & Stewart 1972,
+/// [`crate::numeric::design::lyapunov::solve_lyapunov`] (Bartels & Stewart 1972,
 /// "Solution of the matrix equation AX + XB = C", Comm. ACM) or its discrete analogue
 /// (Kitagawa 1977; Barraud 1977).
 ///

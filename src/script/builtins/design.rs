@@ -1,10 +1,9 @@
 //! Design built-ins: matrix equations (`solve_lyapunov*`, `solve_riccati*`), pole
 //! assignment, LQ regulator and estimator, state feedback, closed loops and the model
-//! operators `* + -`. The numerics are `crate::numeric::design` and
-//! `crate::numeric::linalg::sylvester`.
+//! operators `* + -`. The numerics are `crate::numeric::design` (Lyapunov equations in
+//! `design::lyapunov`).
 
-use crate::numeric::design::{interconnect, lq, pole_assignment, riccati};
-use crate::numeric::linalg::sylvester;
+use crate::numeric::design::{interconnect, lq, lyapunov, pole_assignment, riccati};
 use crate::numeric::lti::system::StateSpace;
 use crate::numeric::lti::tf::TransferFunction as Tf;
 use crate::numeric::NumError;
@@ -324,7 +323,7 @@ crate::builtins! {
     ///     solve_lyapunov([[-2]], [[4]])   // [[1]]: −2x − 2x + 4 = 0
     #[family = "design"]
     fn solve_lyapunov(call, A: DMatrix<f64>, Q: DMatrix<f64>) -> Matrix {
-        sylvester::solve_lyapunov(&A, &Q)
+        lyapunov::solve_lyapunov(&A, &Q)
             .map(Matrix)
             .map_err(call.num())
     }
@@ -337,7 +336,7 @@ crate::builtins! {
     ///     solve_lyapunov_discrete([[0.5]], [[3]])   // [[4]]: 0.25x − x + 3 = 0
     #[family = "design"]
     fn solve_lyapunov_discrete(call, A: DMatrix<f64>, Q: DMatrix<f64>) -> Matrix {
-        sylvester::solve_lyapunov_discrete(&A, &Q)
+        lyapunov::solve_lyapunov_discrete(&A, &Q)
             .map(Matrix)
             .map_err(call.num())
     }

@@ -1,5 +1,6 @@
 use super::*;
 use crate::assert_close;
+use crate::numeric::design::lyapunov::{solve_lyapunov, solve_lyapunov_discrete};
 use crate::numeric::testing::Rng;
 
 const SIZES: [usize; 6] = [0, 1, 2, 3, 10, 40];
