@@ -456,8 +456,25 @@ macro_rules! builtins {
                 ),+],
                 register: |engine: &mut ::rhai::Engine| {
                     $(
-                        $crate::__register_form!(
-                            engine, $name, $call, [$($recv : $rty)?], [$($arg : $ty),*], $ret, $body
+                        // Arguments arrive as engine values and are converted by their
+                        // `Param` type before the body runs; a method form takes its
+                        // receiver by `&mut` (so `t.save_csv(p)` works on the value in
+                        // place, uncopied).
+                        engine.register_fn(
+                            stringify!($name),
+                            |ctx: ::rhai::NativeCallContext
+                                $(, $recv: &mut $rty)?
+                                $(, $arg: ::rhai::Dynamic)*|
+                                -> $crate::script::convert::Rr<$ret> {
+                                #[allow(unused_variables)]
+                                let $call = $crate::script::declare::Call::new(&ctx, stringify!($name));
+                                $(
+                                    let $arg = <$ty as $crate::script::declare::Param>::from_arg(
+                                        $arg, &$call, stringify!($arg),
+                                    )?;
+                                )*
+                                $body
+                            },
                         );
                     )+
                 },
@@ -475,46 +492,6 @@ macro_rules! __receiver {
     };
     ($recv:ident : $rty:ty) => {
         Some((stringify!($recv), stringify!($rty)))
-    };
-}
-
-/// Registers one form of a declared built-in: arguments arrive as engine values and are
-/// converted by their [`Param`] type before the body runs; a method form takes its
-/// receiver by `&mut` (so `t.save_csv(p)` works on the value in place, uncopied).
-#[doc(hidden)]
-#[macro_export]
-macro_rules! __register_form {
-    ($engine:ident, $name:ident, $call:ident, [], [$($arg:ident : $ty:ty),*], $ret:ty, $body:block) => {
-        $engine.register_fn(
-            stringify!($name),
-            |ctx: ::rhai::NativeCallContext $(, $arg: ::rhai::Dynamic)*|
-                -> $crate::script::convert::Rr<$ret> {
-                #[allow(unused_variables)]
-                let $call = $crate::script::declare::Call::new(&ctx, stringify!($name));
-                $(
-                    let $arg = <$ty as $crate::script::declare::Param>::from_arg(
-                        $arg, &$call, stringify!($arg),
-                    )?;
-                )*
-                $body
-            },
-        );
-    };
-    ($engine:ident, $name:ident, $call:ident, [$recv:ident : $rty:ty], [$($arg:ident : $ty:ty),*], $ret:ty, $body:block) => {
-        $engine.register_fn(
-            stringify!($name),
-            |ctx: ::rhai::NativeCallContext, $recv: &mut $rty $(, $arg: ::rhai::Dynamic)*|
-                -> $crate::script::convert::Rr<$ret> {
-                #[allow(unused_variables)]
-                let $call = $crate::script::declare::Call::new(&ctx, stringify!($name));
-                $(
-                    let $arg = <$ty as $crate::script::declare::Param>::from_arg(
-                        $arg, &$call, stringify!($arg),
-                    )?;
-                )*
-                $body
-            },
-        );
     };
 }
 
