@@ -113,27 +113,16 @@ fn warn_all(call: &Call, w: &[String]) {
     }
 }
 
-/// Warns when a transform T is ill-conditioned.
-fn warn_condition(call: &Call, cond: f64) {
-    if let Some(w) = transform::condition_warning(call.name, cond) {
-        state::warn(call.ctx(), w);
-    }
-}
-
-fn realization(system: StateSpace, t: DMatrix<f64>) -> Map {
-    let mut m = Map::new();
-    m.insert("system".into(), system_value(system));
-    m.insert("transform".into(), matrix_value(t));
-    m
-}
-
 /// The map `#{ system, transform }` of a change of coordinates, warning when `T` is
 /// ill-conditioned: the one way every coordinate change reaches a script.
 fn transformed(call: &Call, tr: transform::Transformed) -> Map {
     if let Some(w) = tr.warning(call.name) {
         state::warn(call.ctx(), w);
     }
-    realization(tr.system, tr.t)
+    let mut m = Map::new();
+    m.insert("system".into(), system_value(tr.system));
+    m.insert("transform".into(), matrix_value(tr.t));
+    m
 }
 
 fn names_of(call: &Call, v: &Dynamic, what: &str, count: usize) -> Rr<Vec<String>> {
@@ -162,10 +151,6 @@ fn mode_map(m: &properties::Mode) -> Map {
     );
     out.insert("time_constant".into(), Dynamic::from_float(m.time_constant));
     out
-}
-
-fn realize_rcond(t: &DMatrix<f64>) -> f64 {
-    transform::rcond(t).max(f64::MIN_POSITIVE)
 }
 
 /// The map of `minimal_realization`, warning when a removal changed the input–output
@@ -531,13 +516,9 @@ crate::builtins! {
     {
         let b = balance::balanced_realization(&sys.a, &sys.b, &sys.c, &sys.d, sys.dt)
             .map_err(call.num())?;
-        let new = sys.with_matrices(b.a, b.b, b.c, b.d).map_err(call.num())?;
-        warn_condition(&call, 1.0 / realize_rcond(&b.t));
-        let mut m = realization(new, b.t);
-        m.insert(
-            "hankel_singular_values".into(),
-            Dynamic::from_array(float_array(&b.hankel_singular_values)),
-        );
+        let hsv = float_array(&b.hankel_singular_values);
+        let mut m = transformed(&call, b.transformed(&sys).map_err(call.num())?);
+        m.insert("hankel_singular_values".into(), Dynamic::from_array(hsv));
         Ok(m)
     }
 
@@ -604,9 +585,7 @@ crate::builtins! {
     {
         let k = staircase::kalman_decomposition(&sys.a, &sys.b, &sys.c, &sys.d, None)
             .map_err(call.num())?;
-        let new = sys.with_matrices(k.a, k.b, k.c, k.d).map_err(call.num())?;
-        warn_condition(&call, 1.0 / realize_rcond(&k.t));
-        let mut m = realization(new, k.t);
+        let mut m = transformed(&call, k.transformed(&sys).map_err(call.num())?);
         let sizes = k.sizes.as_array();
         for (name, v) in [
             ("controllable_observable", sizes[0]),
