@@ -13,7 +13,7 @@ pub mod lti;
 pub mod order;
 pub mod sampling;
 pub mod stats;
-#[cfg(test)]
+#[doc(hidden)]
 pub mod testing;
 pub mod time;
 

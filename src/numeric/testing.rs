@@ -1,5 +1,6 @@
-//! Test support shared by the numerical unit tests: seeded random matrices and the one
-//! `assert_close!` macro (STYLE.md § Tests). Compiled only for tests.
+//! Test support shared by the unit and the integration tests: seeded random matrices and
+//! the one `assert_close!` macro (STYLE.md § Tests). Public only so that `tests/all` can
+//! use the same macro; not part of the API.
 
 use crate::numeric::lti::system::StateSpace;
 use nalgebra::DMatrix;
@@ -57,7 +58,8 @@ impl Rng {
 }
 
 /// Asserts that two matrices (or scalars via 1×1) agree entrywise within
-/// `abs + rel·max(|a|, |b|)`; defaults are 100·ε for both.
+/// `abs + rel·max(|a|, |b|)`; defaults are 100·ε for both. A fifth and further arguments
+/// are a format string and its values naming the case.
 #[macro_export]
 macro_rules! assert_close {
     ($a:expr, $b:expr) => {
@@ -69,6 +71,22 @@ macro_rules! assert_close {
         let (abs, rel): (f64, f64) = ($abs, $rel);
         $crate::numeric::testing::close_report(a, b, abs, rel)
             .map_err(|m| panic!("{} vs {}: {}", stringify!($a), stringify!($b), m))
+            .ok();
+    }};
+    ($a:expr, $b:expr, $abs:expr, $rel:expr, $($context:tt)+) => {{
+        let a = &$a;
+        let b = &$b;
+        let (abs, rel): (f64, f64) = ($abs, $rel);
+        $crate::numeric::testing::close_report(a, b, abs, rel)
+            .map_err(|m| {
+                panic!(
+                    "{}: {} vs {}: {}",
+                    format_args!($($context)+),
+                    stringify!($a),
+                    stringify!($b),
+                    m
+                )
+            })
             .ok();
     }};
 }
@@ -123,4 +141,19 @@ pub fn close_report<A: Closeness, B: Closeness>(
         }
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    #[should_panic(expected = "case 3: 1.0 vs 2.0")]
+    fn assert_close_names_the_case_when_it_fails() {
+        crate::assert_close!(1.0, 2.0, 0.0, 1e-3, "case {}", 3);
+    }
+
+    #[test]
+    fn assert_close_passes_within_its_tolerance() {
+        crate::assert_close!(1.0, 1.0 + 1e-9, 0.0, 1e-8, "case {}", 4);
+        crate::assert_close!(0.0, 1e-13, 1e-12, 0.0);
+    }
 }

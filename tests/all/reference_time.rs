@@ -12,6 +12,7 @@ use crate::common;
 use common::fixtures::{self, Tolerance};
 use nalgebra::DMatrix;
 use serde_json::Value;
+use statebook::assert_close;
 use statebook::numeric::freq::response::frequency_response;
 use statebook::numeric::lti::system::StateSpace;
 use statebook::numeric::time::discretize::{discretize, Method};
@@ -277,14 +278,11 @@ fn first_order_closed_forms() {
         samples: 5,
     };
     let step = &step_response(&s, h).expect("step")[0];
-    assert!((step.y[(1, 0)] - k * (1.0 - (-1.0f64).exp())).abs() < 1e-14);
+    assert_close!(step.y[(1, 0)], k * (1.0 - (-1.0f64).exp()), 1e-14, 0.0);
     let imp = &impulse_response(&s, h).expect("impulse")[0];
     for (n, &t) in imp.t.iter().enumerate() {
         let want = k / tau * (-t / tau).exp();
-        assert!(
-            (imp.y[(n, 0)] - want).abs() < 1e-14 * want.max(1.0),
-            "t = {t}"
-        );
+        assert_close!(imp.y[(n, 0)], want, 1e-14 * want.max(1.0), 0.0, "t = {t}");
     }
 }
 
@@ -309,6 +307,6 @@ fn discrete_impulse_is_the_markov_sequence() {
     .expect("impulse")[0];
     let markov = s.markov_parameters(6);
     for (k, mk) in markov.iter().enumerate() {
-        assert!((r.y[(k, 0)] - mk[(0, 0)]).abs() < 1e-15, "k = {k}");
+        assert_close!(r.y[(k, 0)], mk[(0, 0)], 1e-15, 0.0, "k = {k}");
     }
 }

@@ -15,6 +15,7 @@
 //!   `−ωc`, DC gain 1, `‖G‖∞ = 1` (at ω = 0, maximally flat).
 
 use nalgebra::{Complex, DMatrix};
+use statebook::assert_close;
 use statebook::numeric::freq::norms::{h2_norm, hinf_norm};
 use statebook::numeric::lti::balance::{balanced_truncation, hankel_singular_values};
 use statebook::numeric::lti::equivalence::{equivalence, find_transform};
@@ -367,7 +368,7 @@ fn find_transform_recovers_a_badly_scaled_diagonal_transform() {
     for i in 0..2 {
         for j in 0..2 {
             let scale = (t[(i, i)] * t[(j, j)]).sqrt();
-            assert!((got[(i, j)] - t[(i, j)]).abs() <= 1e-8 * scale, "T = {got}");
+            assert_close!(got[(i, j)], t[(i, j)], 1e-8 * scale, 0.0, "T = {got}");
         }
     }
 }

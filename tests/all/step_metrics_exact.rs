@@ -8,6 +8,7 @@
 //!   exponential (nalgebra's `exp`, independent of the code under test) on a fine grid.
 
 use nalgebra::DMatrix;
+use statebook::assert_close;
 use statebook::numeric::lti::system::StateSpace;
 use statebook::numeric::time::metrics::model_step_metrics;
 use std::f64::consts::PI;
@@ -44,25 +45,22 @@ fn second_order_metrics_follow_a_rescaled_time_axis() {
                 .unwrap_or_else(|e| panic!("{e}"))[0]
                 .metrics;
             let tp = PI / (wn * root);
-            assert!(
-                (m.overshoot - os).abs() < 1e-8 * os,
-                "ζ = {zeta}, ωn = {wn}"
-            );
-            assert!(
-                (m.peak_time - tp).abs() < 1e-8 * tp,
-                "ζ = {zeta}, ωn = {wn}"
-            );
+            assert_close!(m.overshoot, os, 0.0, 1e-8, "ζ = {zeta}, ωn = {wn}");
+            assert_close!(m.peak_time, tp, 0.0, 1e-8, "ζ = {zeta}, ωn = {wn}");
             for (got, unit) in [
                 (m.rise_time, at_one.rise_time),
                 (m.settling_time, at_one.settling_time),
             ] {
                 let want = unit / wn;
-                assert!(
-                    (got - want).abs() < 1e-8 * want,
+                assert_close!(
+                    got,
+                    want,
+                    0.0,
+                    1e-8,
                     "ζ = {zeta}, ωn = {wn}: {got} vs {want}"
                 );
             }
-            assert!((m.final_value - 1.0).abs() < 1e-12);
+            assert_close!(m.final_value, 1.0, 1e-12, 0.0);
         }
     }
 }
@@ -77,13 +75,19 @@ fn second_order_closed_forms_from_light_to_heavy_damping() {
         let root = (1.0f64 - zeta * zeta).sqrt();
         let os = 100.0 * (-zeta * PI / root).exp();
         let tp = PI / (wn * root);
-        assert!(
-            (m.overshoot - os).abs() < 1e-8 * os,
+        assert_close!(
+            m.overshoot,
+            os,
+            0.0,
+            1e-8,
             "ζ = {zeta}: overshoot {} vs {os}",
             m.overshoot
         );
-        assert!(
-            (m.peak_time - tp).abs() < 1e-8 * tp,
+        assert_close!(
+            m.peak_time,
+            tp,
+            0.0,
+            1e-8,
             "ζ = {zeta}: peak time {} vs {tp}",
             m.peak_time
         );
@@ -91,8 +95,11 @@ fn second_order_closed_forms_from_light_to_heavy_damping() {
         let t10 = bisect(|t| closed(zeta, wn, t) - 0.1, 0.0, tp);
         let t90 = bisect(|t| closed(zeta, wn, t) - 0.9, 0.0, tp);
         let rise = t90 - t10;
-        assert!(
-            (m.rise_time - rise).abs() < 1e-8 * rise,
+        assert_close!(
+            m.rise_time,
+            rise,
+            0.0,
+            1e-8,
             "ζ = {zeta}: rise {} vs {rise}",
             m.rise_time
         );
@@ -100,8 +107,11 @@ fn second_order_closed_forms_from_light_to_heavy_damping() {
         // after it up to where the envelope e^{−ζωn t}/√(1−ζ²) guarantees it.
         let ts = m.settling_time;
         let dev = |t: f64| (closed(zeta, wn, t) - 1.0).abs();
-        assert!(
-            (dev(ts) - 0.02).abs() < 1e-7,
+        assert_close!(
+            dev(ts),
+            0.02,
+            1e-7,
+            0.0,
             "ζ = {zeta}: deviation {} at ts = {ts}",
             dev(ts)
         );
@@ -188,13 +198,19 @@ fn fast_resonance_beside_a_slow_lag() {
     }
     let os = 100.0 * (best - 1.0);
     assert!(os > 40.0, "reference overshoot {os}");
-    assert!(
-        (m.overshoot - os).abs() < 1e-6 * os,
+    assert_close!(
+        m.overshoot,
+        os,
+        0.0,
+        1e-6,
         "overshoot {} vs {os}",
         m.overshoot
     );
-    assert!(
-        (m.peak_time - tbest).abs() < 1e-6,
+    assert_close!(
+        m.peak_time,
+        tbest,
+        1e-6,
+        0.0,
         "peak time {} vs {tbest}",
         m.peak_time
     );
@@ -215,18 +231,17 @@ fn triple_pole_settles_within_the_horizon() {
     let m = model_step_metrics(&sys, None).unwrap_or_else(|e| panic!("{e}"))[0].metrics;
     // Monotone response: the settling time is the crossing of 0.98.
     let ts = bisect(|t| exact(&sys, t) - 0.98, 0.0, 30.0);
-    assert!(
-        (m.settling_time - ts).abs() < 1e-8 * ts,
+    assert_close!(
+        m.settling_time,
+        ts,
+        0.0,
+        1e-8,
         "settling {} vs {ts}",
         m.settling_time
     );
     let t10 = bisect(|t| exact(&sys, t) - 0.1, 0.0, 30.0);
     let t90 = bisect(|t| exact(&sys, t) - 0.9, 0.0, 30.0);
-    assert!(
-        (m.rise_time - (t90 - t10)).abs() < 1e-8 * (t90 - t10),
-        "rise {}",
-        m.rise_time
-    );
+    assert_close!(m.rise_time, (t90 - t10), 0.0, 1e-8, "rise {}", m.rise_time);
 }
 
 #[test]

@@ -273,7 +273,7 @@ fn real_schur_blocks_are_standard_complex_pairs() {
         assert_eq!(eig.len(), n);
         // Sum of eigenvalues = trace (Vieta).
         let sum: Complex<f64> = eig.iter().sum();
-        assert!((sum.re - a.trace()).abs() <= 1e-12 * m * fro(&a).max(1.0));
+        assert_close!(sum.re, a.trace(), 1e-12 * m * fro(&a).max(1.0), 0.0);
         assert_eq!(sum.im, 0.0);
     }
     // [[1, 2], [3, 4]] has real eigenvalues (5 ± √33)/2 (quadratic formula): 1×1 blocks.

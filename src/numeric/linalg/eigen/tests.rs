@@ -1,4 +1,5 @@
 use super::*;
+use crate::assert_close;
 use crate::numeric::testing::Rng;
 
 const EPS: f64 = f64::EPSILON;
@@ -42,9 +43,12 @@ fn assert_conventions(e: &Eigen) {
     for k in 0..n {
         let col: Vec<C64> = e.vectors.column(k).iter().copied().collect();
         let norm = col.iter().map(|z| z.norm_sqr()).sum::<f64>().sqrt();
-        assert!(
-            (norm - 1.0).abs() < 10.0 * EPS * (n as f64).max(1.0),
-            "column {k} norm {norm}"
+        assert_close!(
+            norm,
+            1.0,
+            10.0 * EPS * (n as f64).max(1.0),
+            0.0,
+            "column {k}"
         );
         let big = col.iter().fold(0.0f64, |m, z| m.max(z.norm()));
         let first = col.iter().position(|z| z.norm() == big).unwrap();

@@ -1,4 +1,5 @@
 use super::*;
+use crate::assert_close;
 use crate::numeric::testing::Rng;
 
 const EPS: f64 = f64::EPSILON;
@@ -126,7 +127,8 @@ fn rotation_block_closed_form() {
     let s = RealSchur::new(&a).unwrap();
     assert_eq!(s.t[(1, 0)], 0.0);
     let ev = sorted(s.eigenvalues());
-    assert!((ev[0].re - 1.0).abs() < 10.0 * EPS && (ev[1].re - 4.0).abs() < 10.0 * EPS);
+    assert_close!(ev[0].re, 1.0, 10.0 * EPS, 0.0);
+    assert_close!(ev[1].re, 4.0, 10.0 * EPS, 0.0);
 }
 
 #[test]
@@ -158,7 +160,7 @@ fn lanv2_cases() {
         );
         assert!(s.c == 0.0 || (s.a == s.d && s.b.signum() != s.c.signum()));
         // The trace is preserved: rt1 + rt2 = a + d (exact in exact arithmetic).
-        assert!(((s.rt1 + s.rt2).re - (a + d)).abs() <= 8.0 * EPS * scale);
+        assert_close!((s.rt1 + s.rt2).re, a + d, 8.0 * EPS * scale, 0.0);
     }
 }
 
@@ -174,7 +176,7 @@ fn cyclic_permutation_needs_exceptional_shifts() {
         let (r1, r2) = ratios(&p, &s);
         assert!(r1 < 30.0 && r2 < 30.0, "n = {n}: {r1} {r2}");
         for z in s.eigenvalues() {
-            assert!((z.norm() - 1.0).abs() < 1e-12);
+            assert_close!(z.norm(), 1.0, 1e-12, 0.0);
             assert!((z.powi(n as i32) - Complex::new(1.0, 0.0)).norm() < 1e-11);
         }
     }
@@ -355,7 +357,7 @@ fn reorder_triangular_closed_form() {
     assert_eq!(s.reorder(|z| z.re < 0.0).unwrap(), 2);
     let ev: Vec<f64> = s.eigenvalues().iter().map(|z| z.re).collect();
     for (x, y) in ev.iter().zip([-1.0, -2.0, 3.0, 2.0, 1.0].iter()) {
-        assert!((x - y).abs() < 1e-14, "{ev:?}");
+        assert_close!(*x, *y, 1e-14, 0.0, "{ev:?}");
     }
     let (r1, _) = ratios(&t, &s);
     assert!(r1 < 30.0);

@@ -1,4 +1,5 @@
 use super::*;
+use crate::assert_close;
 
 fn opts(method: OdeMethod, rtol: f64, atol: f64) -> OdeOptions {
     OdeOptions {
@@ -324,7 +325,7 @@ fn blow_up_gives_step_size_underflow() {
             .next()
             .and_then(|s| s.parse().ok())
             .unwrap_or(0.0);
-        assert!((t - 1.0).abs() < 1e-6, "{m}");
+        assert_close!(t, 1.0, 1e-6, 0.0, "{m}");
     }
 }
 
