@@ -7,8 +7,10 @@ use rhai::{EvalAltResult, ParseError, Position};
 /// A script error with its position in the analysis file (or in a file it imports).
 #[derive(Debug, Clone, PartialEq)]
 pub struct ScriptError {
-    /// What went wrong, in the user's terms (may hold a `hint:` line).
-    pub message: String,
+    /// What went wrong, in the user's terms (without its hints).
+    pub message: Box<str>,
+    /// What to try, one line each (shown after the location as `hint: …`).
+    pub hints: Box<[Box<str>]>,
     /// 1-based line, when known.
     pub line: Option<usize>,
     /// 1-based column, when known.
@@ -20,7 +22,7 @@ pub struct ScriptError {
     /// The text of that line of the imported file (the session kept the text it ran).
     pub file_line: Option<Box<str>>,
     /// The function calls and imports that led to the error, innermost first.
-    pub calls: Vec<CallSite>,
+    pub calls: Box<[CallSite]>,
 }
 
 /// One step of the way to an error: a call of a script function or an import.
@@ -50,16 +52,24 @@ pub fn module_file(path: &str) -> String {
 }
 
 impl ScriptError {
-    /// An error without a position.
+    /// An error without a position. `hint: …` lines of `message` (as numeric errors and
+    /// built-ins word them) become [`ScriptError::hints`].
     pub fn plain(message: impl Into<String>) -> Self {
+        let message = message.into();
+        let (hints, lines): (Vec<&str>, Vec<&str>) =
+            message.lines().partition(|l| l.starts_with("hint: "));
         ScriptError {
-            message: message.into(),
+            message: lines.join("\n").into(),
+            hints: hints
+                .iter()
+                .map(|h| h.trim_start_matches("hint: ").into())
+                .collect(),
             line: None,
             column: None,
             internal: false,
             file: None,
             file_line: None,
-            calls: Vec::new(),
+            calls: Box::new([]),
         }
     }
 
@@ -134,7 +144,7 @@ impl ScriptError {
             line,
             column,
             file: file.map(Into::into),
-            calls,
+            calls: calls.into(),
             ..ScriptError::plain(message)
         }
     }
@@ -171,7 +181,7 @@ impl ScriptError {
     pub fn render(&self, file_name: &str, source: &str) -> String {
         let (head, rest) = match self.message.split_once('\n') {
             Some((h, r)) => (h.to_string(), Some(r.to_string())),
-            None => (self.message.clone(), None),
+            None => (self.message.to_string(), None),
         };
         let mut s = format!("error: {head}");
         let shown = self.file.as_deref().unwrap_or(file_name);
@@ -202,6 +212,10 @@ impl ScriptError {
         if let Some(r) = rest {
             s.push('\n');
             s.push_str(&r);
+        }
+        for h in &self.hints {
+            s.push_str("\nhint: ");
+            s.push_str(h);
         }
         for n in self.call_notes(file_name) {
             s.push_str("\nnote: ");
@@ -370,6 +384,9 @@ mod tests {
             "{out}"
         );
         assert!(out.ends_with("hint: check B"));
+        assert_eq!(e.hints.len(), 1, "hints are data on the diagnostic");
+        assert_eq!(&*e.hints[0], "check B");
+        assert_eq!(&*e.message, "solve: B: expected 2 rows, found 3");
     }
 
     #[test]

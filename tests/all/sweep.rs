@@ -36,7 +36,7 @@ fn eval(s: &mut Session, code: &str) -> String {
 fn eval_err(s: &mut Session, code: &str) -> String {
     match s.eval(code) {
         Ok(v) => panic!("expected an error, got {}", s.display(&v)),
-        Err(e) => e.message,
+        Err(e) => e.message.into(),
     }
 }
 

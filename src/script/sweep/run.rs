@@ -121,6 +121,7 @@ fn describe(e: &rhai::EvalAltResult) -> String {
     let notes = se.call_notes("the analysis file");
     for rest in lines
         .map(str::to_string)
+        .chain(se.hints.iter().map(|h| format!("hint: {h}")))
         .chain(notes.into_iter().map(|n| format!("note: {n}")))
     {
         s.push_str("; ");
