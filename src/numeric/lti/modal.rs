@@ -9,7 +9,7 @@
 //! an ill-conditioned eigenvector matrix is never inverted. Each complex pair's block is
 //! finally scaled to `[[σ, ω], [−ω, σ]]` (ω > 0) and each block's columns normalised.
 
-use super::properties::snap;
+use super::properties::{snap, Rounding};
 use super::system::StateSpace;
 use super::transform::{rcond, rcond_up_to_state_units, Transformed};
 use crate::numeric::linalg::dense::balance_reducing_norm;
@@ -29,6 +29,26 @@ pub const CLUSTER_TOLERANCE: f64 = 1e-9;
 /// repeated real eigenvalue of a nearly defective matrix, not an oscillation.
 pub const NEARLY_DEFECTIVE: f64 = 1e-6;
 
+/// What a modal or Jordan realization has to say about its result; the script layer
+/// words it.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ModalNote {
+    /// Repeated or nearly repeated eigenvalues (one per diagonal block of the cluster, the
+    /// member with non-negative imaginary part) stay in one coupled `size`×`size` block.
+    Coupled {
+        /// The eigenvalues of the cluster's blocks.
+        eigenvalues: Vec<Complex<f64>>,
+        /// The order of the coupled block.
+        size: usize,
+    },
+    /// A pole within its own rounding error of the stability boundary, shown on it (as
+    /// `modes` reports it).
+    OnBoundary(Rounding),
+    /// The Jordan structure is numerically fragile: an arbitrarily small change of `A` can
+    /// change it.
+    FragileJordan,
+}
+
 /// A modal (or Jordan) realization and its transform.
 #[derive(Debug, Clone)]
 pub struct Modal {
@@ -37,8 +57,9 @@ pub struct Modal {
     pub form: Transformed,
     /// Sizes of the diagonal blocks in order.
     pub blocks: Vec<usize>,
-    /// Numerical-health warnings (coupled clusters, ill-conditioning).
-    pub warnings: Vec<String>,
+    /// What the caller should say about the result (coupled clusters, poles put on the
+    /// boundary, a fragile Jordan structure); ill-conditioning is in `form.condition`.
+    pub notes: Vec<ModalNote>,
 }
 
 /// A model without states is its own modal and Jordan realization (empty transform).
@@ -51,7 +72,7 @@ fn stateless(sys: &StateSpace) -> Modal {
             condition: 1.0,
         },
         blocks: Vec::new(),
-        warnings: Vec::new(),
+        notes: Vec::new(),
     }
 }
 
@@ -65,7 +86,7 @@ struct Decoupled {
     t: DMatrix<f64>,
     basis: DMatrix<f64>,
     blocks: Vec<(usize, usize)>,
-    warnings: Vec<String>,
+    notes: Vec<ModalNote>,
 }
 
 fn decouple(a: &DMatrix<f64>) -> NumResult<Decoupled> {
@@ -93,7 +114,7 @@ fn decouple(a: &DMatrix<f64>) -> NumResult<Decoupled> {
     let blocks = schur.blocks();
     let mut t = schur.t.clone();
     let mut basis = schur.q.clone();
-    let mut warnings = Vec::new();
+    let mut notes = Vec::new();
     // Group blocks into clusters, then decouple leading clusters from the rest.
     let mut out_blocks = Vec::new();
     let mut i = 0;
@@ -139,19 +160,12 @@ fn decouple(a: &DMatrix<f64>) -> NumResult<Decoupled> {
             z.im.abs() <= NEARLY_DEFECTIVE * (1.0 + z.norm())
         };
         if e - s > 2 || (e - s == 2 && k0 == 1) || tiny_pair {
-            let vals: Vec<String> = (i..j)
-                .map(|b| {
-                    let z = block_eigenvalue(&t, blocks[b].0, blocks[b].1);
-                    format!("{:.6}{:+.6}j", z.re, z.im)
-                })
-                .collect();
-            warnings.push(format!(
-                "eigenvalues {} are repeated or too close to separate safely; their {}×{} block \
-                 stays coupled (not diagonal)",
-                vals.join(", "),
-                e - s,
-                e - s
-            ));
+            notes.push(ModalNote::Coupled {
+                eigenvalues: (i..j)
+                    .map(|b| block_eigenvalue(&t, blocks[b].0, blocks[b].1))
+                    .collect(),
+                size: e - s,
+            });
         }
         i = j;
     }
@@ -159,7 +173,7 @@ fn decouple(a: &DMatrix<f64>) -> NumResult<Decoupled> {
         t,
         basis,
         blocks: out_blocks,
-        warnings,
+        notes,
     })
 }
 
@@ -234,8 +248,8 @@ fn assemble(sys: &StateSpace, d: Decoupled, what: &str) -> NumResult<Modal> {
             }
         }
     }
-    let mut warnings = d.warnings;
-    onto_boundary(&mut a, &d.blocks, sys, what, &mut warnings)?;
+    let mut notes = d.notes;
+    onto_boundary(&mut a, &d.blocks, sys, &mut notes)?;
     let mut system = sys.with_matrices(a, b, c, sys.d.clone())?;
     system.names.states.clear();
     // The basis is judged up to the units of the states (its rows): a model with badly
@@ -250,7 +264,7 @@ fn assemble(sys: &StateSpace, d: Decoupled, what: &str) -> NumResult<Modal> {
             condition,
         },
         blocks: d.blocks.iter().map(|&(_, k)| k).collect(),
-        warnings,
+        notes,
     })
 }
 
@@ -265,8 +279,7 @@ fn onto_boundary(
     a: &mut DMatrix<f64>,
     blocks: &[(usize, usize)],
     sys: &StateSpace,
-    what: &str,
-    warnings: &mut Vec<String>,
+    notes: &mut Vec<ModalNote>,
 ) -> NumResult<()> {
     let bounded = eigenvalues_with_bounds(&sys.a)?;
     for &(s, k) in blocks {
@@ -302,22 +315,13 @@ fn onto_boundary(
         } else {
             continue;
         }
-        warnings.push(format!(
-            "{what}: the pole computed as {} lies within its rounding error (±{error:.1e}) of \
-             {}; the form shows it there",
-            fmt_pole(z),
-            boundary.describe()
-        ));
+        notes.push(ModalNote::OnBoundary(Rounding {
+            computed: z,
+            error,
+            boundary,
+        }));
     }
     Ok(())
-}
-
-fn fmt_pole(z: Complex<f64>) -> String {
-    if z.im == 0.0 {
-        format!("{:e}", z.re)
-    } else {
-        format!("{:e}{:+e}j", z.re, z.im)
-    }
 }
 
 /// The modal realization: real poles on the diagonal, each complex pair as a 2×2 block
@@ -394,12 +398,7 @@ pub fn jordan_realization(sys: &StateSpace) -> NumResult<Modal> {
     d.blocks = new_blocks;
     scale_blocks(&mut d);
     let mut out = assemble(sys, d, "jordan_realization")?;
-    out.warnings.insert(
-        0,
-        "jordan_realization: the Jordan form is numerically fragile — an arbitrarily small \
-         change of A can change its block structure; prefer modal_realization for computation"
-            .into(),
-    );
+    out.notes.insert(0, ModalNote::FragileJordan);
     Ok(out)
 }
 
@@ -605,9 +604,9 @@ mod tests {
             let zeros = d.iter().filter(|&&x| x == 0.0).count();
             assert_eq!(zeros, 1, "scaling 1e{e}: diagonal {d:?}");
             noted += m
-                .warnings
+                .notes
                 .iter()
-                .filter(|w| w.contains("rounding error"))
+                .filter(|w| matches!(w, ModalNote::OnBoundary(_)))
                 .count();
             let v = crate::numeric::lti::equivalence::equivalence(&scaled, &m.form.system).unwrap();
             assert!(v.equivalent, "scaling 1e{e}: {}", v.reason);
@@ -623,7 +622,7 @@ mod tests {
         .unwrap();
         let m = modal_realization(&slow).unwrap();
         assert!(m.form.system.a.diagonal().iter().any(|&x| x == -1e-7));
-        assert!(m.warnings.is_empty());
+        assert!(m.notes.is_empty());
     }
 
     #[test]
@@ -712,7 +711,10 @@ mod tests {
         let sys = model(a, &mut rng);
         let m = modal_realization(&sys).unwrap();
         assert_eq!(m.blocks, vec![1, 2]);
-        assert!(!m.warnings.is_empty());
+        assert!(m
+            .notes
+            .iter()
+            .any(|n| matches!(n, ModalNote::Coupled { .. })));
         same_markov(&sys, &m.form.system);
         let jr = jordan_realization(&sys).unwrap();
         let ja = &jr.form.system.a;

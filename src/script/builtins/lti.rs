@@ -106,10 +106,46 @@ fn tf_value(t: Tf) -> Dynamic {
     Dynamic::from(TransferFunction(t))
 }
 
-/// Passes on warnings the numerics worded themselves (some name the built-in already).
-fn warn_all(call: &Call, w: &[String]) {
-    for m in w {
-        state::warn(call.ctx(), m.clone());
+/// Words a pole that was put on the stability boundary (`modes`, the modal forms): `how`
+/// says where the result shows it.
+fn warn_rounding(call: &Call, r: &properties::Rounding, how: &str) {
+    // Every digit: the point is how far from the boundary the computed value lies.
+    let z = r.computed;
+    let computed = if z.im == 0.0 {
+        format!("{:e}", z.re)
+    } else {
+        format!("{:e}{:+e}j", z.re, z.im)
+    };
+    call.warn(format_args!(
+        "the pole computed as {computed} lies within its rounding error (±{:.1e}) of {}, and \
+         {how}",
+        r.error,
+        r.boundary.describe()
+    ));
+}
+
+/// Words the notes of a modal or Jordan realization.
+fn warn_modal(call: &Call, notes: &[modal::ModalNote]) {
+    let style = state::style(call.ctx());
+    for n in notes {
+        match n {
+            modal::ModalNote::Coupled { eigenvalues, size } => {
+                let vals: Vec<String> = eigenvalues
+                    .iter()
+                    .map(|z| crate::display::complex(z.re, z.im, style))
+                    .collect();
+                call.warn(format_args!(
+                    "eigenvalues {} are repeated or too close to separate safely; their \
+                     {size}×{size} block stays coupled (not diagonal)",
+                    vals.join(", ")
+                ));
+            }
+            modal::ModalNote::OnBoundary(r) => warn_rounding(call, r, "the form shows it there"),
+            modal::ModalNote::FragileJordan => call.warn(
+                "the Jordan form is numerically fragile — an arbitrarily small change of A can \
+                 change its block structure; prefer modal_realization for computation",
+            ),
+        }
     }
 }
 
@@ -400,13 +436,7 @@ crate::builtins! {
     {
         let m = properties::modes(&sys).map_err(call.num())?;
         for r in m.iter().filter_map(|x| x.rounding) {
-            call.warn(format_args!(
-                "the pole computed as {} lies within its rounding error (±{:.1e}) of {}, \
-                 and is listed there",
-                crate::display::complex(r.computed.re, r.computed.im, crate::script::state::style(call.ctx())),
-                r.error,
-                r.boundary.describe()
-            ));
+            warn_rounding(&call, &r, "is listed there");
         }
         Ok(m.iter().map(|x| Dynamic::from_map(mode_map(x))).collect())
     }
@@ -459,7 +489,7 @@ crate::builtins! {
     #[family = "transforms"]
     fn modal_realization(call, sys: Model) -> Map as "#{ system, transform }" {
         let m = modal::modal_realization(&sys).map_err(call.num())?;
-        warn_all(&call, &m.warnings);
+        warn_modal(&call, &m.notes);
         Ok(transformed(&call, m.form))
     }
 
@@ -499,7 +529,7 @@ crate::builtins! {
     #[family = "transforms"]
     fn jordan_realization(call, sys: Model) -> Map as "#{ system, transform }" {
         let m = modal::jordan_realization(&sys).map_err(call.num())?;
-        warn_all(&call, &m.warnings);
+        warn_modal(&call, &m.notes);
         Ok(transformed(&call, m.form))
     }
 
