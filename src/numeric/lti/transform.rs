@@ -64,13 +64,15 @@ pub struct Transformed {
     pub t_inv: DMatrix<f64>,
     /// The condition number of `T` that bounds the rounding the change adds (for a basis
     /// built from the model, taken up to the units of the states where the method says so).
+    /// Above [`WARN_CONDITION`] the caller warns.
     pub condition: f64,
 }
 
 impl Transformed {
-    /// The warning for an ill-conditioned change of coordinates, if any ([`WARN_CONDITION`]).
-    pub fn warning(&self, what: &str) -> Option<String> {
-        condition_warning(what, self.condition)
+    /// Whether the change is ill-conditioned enough to say so (`condition` above
+    /// [`WARN_CONDITION`]); the rounding it may add is about `condition·ε` relative.
+    pub fn ill_conditioned(&self) -> bool {
+        self.condition > WARN_CONDITION
     }
 }
 
@@ -114,17 +116,6 @@ pub fn transform_state(sys: &StateSpace, t: &DMatrix<f64>) -> NumResult<Transfor
         t: t.clone(),
         t_inv,
         condition: if rc > 0.0 { 1.0 / rc } else { f64::INFINITY },
-    })
-}
-
-/// The warning for an ill-conditioned transform, if cond(T) exceeds the threshold.
-pub fn condition_warning(what: &str, cond: f64) -> Option<String> {
-    (cond > WARN_CONDITION).then(|| {
-        format!(
-            "{what}: the transform T is ill-conditioned (condition number {cond:.2e}); the new \
-             model's entries may carry errors up to about {:.0e} relative",
-            cond * f64::EPSILON
-        )
     })
 }
 

@@ -149,12 +149,22 @@ fn warn_modal(call: &Call, notes: &[modal::ModalNote]) {
     }
 }
 
+/// Warns when a change of coordinates is ill-conditioned, with the rounding it may add.
+fn warn_conditioning(call: &Call, tr: &transform::Transformed) {
+    if tr.ill_conditioned() {
+        call.warn(format_args!(
+            "the transform T is ill-conditioned (condition number {:.2e}); the new model's \
+             entries may carry errors up to about {:.0e} relative",
+            tr.condition,
+            tr.condition * f64::EPSILON
+        ));
+    }
+}
+
 /// The map `#{ system, transform }` of a change of coordinates, warning when `T` is
 /// ill-conditioned: the one way every coordinate change reaches a script.
 fn transformed(call: &Call, tr: transform::Transformed) -> Map {
-    if let Some(w) = tr.warning(call.name) {
-        state::warn(call.ctx(), w);
-    }
+    warn_conditioning(call, &tr);
     let mut m = Map::new();
     m.insert("system".into(), system_value(tr.system));
     m.insert("transform".into(), matrix_value(tr.t));
@@ -470,9 +480,7 @@ crate::builtins! {
     #[family = "transforms"]
     fn transform_state(call, sys: Model, T: DMatrix<f64>) -> Dynamic as "System" {
         let tr = transform::transform_state(&sys, &T).map_err(call.num())?;
-        if let Some(w) = tr.warning(call.name) {
-            state::warn(call.ctx(), w);
-        }
+        warn_conditioning(&call, &tr);
         Ok(system_value(tr.system))
     }
 
