@@ -5,7 +5,7 @@
 //! `(Aᵀ, Cᵀ, W, V)`. The time domain follows `sys.dt` (0: continuous, > 0: discrete).
 
 use crate::numeric::check;
-use crate::numeric::design::riccati::{continuous_impl, discrete_impl, RiccatiParams, Roles};
+use crate::numeric::design::riccati::{solve_impl, RiccatiParams, Roles, Time};
 use crate::numeric::error::{NumError, NumResult};
 use crate::numeric::lti::system::StateSpace;
 use nalgebra::{Complex, DMatrix};
@@ -54,11 +54,7 @@ pub struct Estimator {
 /// stability boundary unseen by `Q`.
 pub fn lq_regulator(sys: &StateSpace, q: &DMatrix<f64>, r: &DMatrix<f64>) -> NumResult<Lq> {
     let params = RiccatiParams::default();
-    let sol = if sys.is_discrete() {
-        discrete_impl(&sys.a, &sys.b, q, r, &params, &Roles::CONTROL)?
-    } else {
-        continuous_impl(&sys.a, &sys.b, q, r, &params, &Roles::CONTROL)?
-    };
+    let sol = solve_impl(time_of(sys), &sys.a, &sys.b, q, r, &params, &Roles::CONTROL)?;
     Ok(Lq {
         gain: sol.gain,
         riccati: sol.x,
@@ -98,11 +94,7 @@ pub fn lq_estimator(sys: &StateSpace, w: &DMatrix<f64>, v: &DMatrix<f64>) -> Num
     let at = sys.a.transpose();
     let ct = sys.c.transpose();
     let params = RiccatiParams::default();
-    let sol = if sys.is_discrete() {
-        discrete_impl(&at, &ct, w, v, &params, &Roles::ESTIMATION)?
-    } else {
-        continuous_impl(&at, &ct, w, v, &params, &Roles::ESTIMATION)?
-    };
+    let sol = solve_impl(time_of(sys), &at, &ct, w, v, &params, &Roles::ESTIMATION)?;
     if sol.gain.nrows() != p {
         return Err(NumError::shape(
             "estimator gain",
@@ -115,6 +107,15 @@ pub fn lq_estimator(sys: &StateSpace, w: &DMatrix<f64>, v: &DMatrix<f64>) -> Num
         covariance: sol.x,
         estimator_poles: sol.closed_loop_poles,
     })
+}
+
+/// The Riccati equation of a model's time domain.
+fn time_of(sys: &StateSpace) -> Time {
+    if sys.is_discrete() {
+        Time::Discrete
+    } else {
+        Time::Continuous
+    }
 }
 
 #[cfg(test)]

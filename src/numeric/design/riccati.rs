@@ -23,9 +23,9 @@ use nalgebra::{Cholesky, Complex, DMatrix, Dyn, SymmetricEigen};
 mod continuous;
 mod diagnosis;
 mod discrete;
-pub(crate) use continuous::continuous_impl;
+use continuous::continuous_unscaled;
 use diagnosis::*;
-pub(crate) use discrete::discrete_impl;
+use discrete::discrete_unscaled;
 
 /// Tolerances and iteration caps of the Riccati solvers.
 #[derive(Debug, Clone, PartialEq)]
@@ -148,7 +148,7 @@ pub fn solve_riccati_with(
     r: &DMatrix<f64>,
     params: &RiccatiParams,
 ) -> NumResult<Riccati> {
-    continuous_impl(a, b, q, r, params, &Roles::CONTROL)
+    solve_impl(Time::Continuous, a, b, q, r, params, &Roles::CONTROL)
 }
 
 /// Solves the discrete algebraic Riccati equation
@@ -209,7 +209,7 @@ pub fn solve_riccati_discrete_with(
     r: &DMatrix<f64>,
     params: &RiccatiParams,
 ) -> NumResult<Riccati> {
-    discrete_impl(a, b, q, r, params, &Roles::CONTROL)
+    solve_impl(Time::Discrete, a, b, q, r, params, &Roles::CONTROL)
 }
 
 // ------------------------------------------------------------------------------------------
@@ -250,9 +250,29 @@ impl Roles {
     };
 }
 
+/// The stabilizing solution in `time`, solved in balanced state coordinates: the one entry
+/// point of the solvers (`solve_riccati*`, the LQ regulator and estimator).
+pub(crate) fn solve_impl(
+    time: Time,
+    a: &DMatrix<f64>,
+    b: &DMatrix<f64>,
+    q: &DMatrix<f64>,
+    r: &DMatrix<f64>,
+    params: &RiccatiParams,
+    roles: &Roles,
+) -> NumResult<Riccati> {
+    in_balanced_states(a, b, q, r, |a, b, q| match time {
+        Time::Continuous => continuous_unscaled(a, b, q, r, params, roles),
+        Time::Discrete => discrete_unscaled(a, b, q, r, params, roles),
+    })
+}
+
+/// Which Riccati equation: continuous or discrete time.
 #[derive(Debug, Clone, Copy, PartialEq)]
-enum Time {
+pub(crate) enum Time {
+    /// `AᵀX + XA − XBR⁻¹BᵀX + Q = 0`.
     Continuous,
+    /// `AᵀXA − X − AᵀXB(R + BᵀXB)⁻¹BᵀXA + Q = 0`.
     Discrete,
 }
 

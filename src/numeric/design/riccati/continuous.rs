@@ -3,19 +3,6 @@
 
 use super::*;
 
-pub(crate) fn continuous_impl(
-    a: &DMatrix<f64>,
-    b: &DMatrix<f64>,
-    q: &DMatrix<f64>,
-    r: &DMatrix<f64>,
-    params: &RiccatiParams,
-    roles: &Roles,
-) -> NumResult<Riccati> {
-    in_balanced_states(a, b, q, r, |a, b, q| {
-        continuous_unscaled(a, b, q, r, params, roles)
-    })
-}
-
 pub(super) fn continuous_unscaled(
     a: &DMatrix<f64>,
     b: &DMatrix<f64>,
