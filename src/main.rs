@@ -3,6 +3,7 @@
 
 use clap::{Args, Parser, Subcommand};
 use statebook::notebook::output::NotebookRun;
+use statebook::notebook::NotebookError;
 use statebook::notebook::{check, files, run, sweeps};
 use statebook::sandbox::Limits;
 use statebook::script::sweep::{Shard, SweepPlan};
@@ -203,6 +204,8 @@ enum CliError {
     Usage(String),
     /// The command failed (exit 1): `error: …` (a message may carry `hint:` lines).
     Failed(String),
+    /// Reading, merging or checking notebook files failed (exit 1): `error: …`.
+    Notebook(NotebookError),
     /// A script stopped on an error (exit 1): the diagnostic is already worded with its
     /// `file:line:col` and source line; `note` says what was not written because of it.
     Script {
@@ -221,7 +224,10 @@ impl CliError {
     fn exit_code(&self) -> u8 {
         match self {
             CliError::Usage(_) => 2,
-            CliError::Failed(_) | CliError::Script { .. } | CliError::Reported => 1,
+            CliError::Failed(_)
+            | CliError::Notebook(_)
+            | CliError::Script { .. }
+            | CliError::Reported => 1,
         }
     }
 
@@ -229,6 +235,7 @@ impl CliError {
     fn print(&self) {
         match self {
             CliError::Usage(m) | CliError::Failed(m) => eprintln!("error: {m}"),
+            CliError::Notebook(e) => eprintln!("error: {e}"),
             CliError::Script { diagnostic, note } => {
                 eprintln!("{diagnostic}");
                 if let Some(n) = note {
@@ -337,7 +344,7 @@ fn execute_planned(
     common: &Common,
     plan: SweepPlan,
 ) -> Result<(NotebookRun, Session, String), CliError> {
-    let (text, sha) = files::read_analysis(file).map_err(CliError::Failed)?;
+    let (text, sha) = files::read_analysis(file).map_err(CliError::Notebook)?;
     let name = file.display().to_string();
     let mut session = Session::new(&common.options(&folder_of(file)));
     session.plan_sweeps(plan);
@@ -387,7 +394,7 @@ fn cmd_merge(parts: &[PathBuf], output: &Path) -> CliResult {
             .map_err(|e| CliError::Failed(format!("cannot read {}: {e}", p.display())))?;
         texts.push((p.display().to_string(), t));
     }
-    let merged = sweeps::merge(&texts).map_err(CliError::Failed)?;
+    let merged = sweeps::merge(&texts).map_err(CliError::Notebook)?;
     statebook::sandbox::write_atomic(output, merged.as_bytes())
         .map_err(|e| cannot_write(output, e))?;
     println!("wrote {} (from {} shards)", output.display(), parts.len());
@@ -424,8 +431,8 @@ fn cmd_check(file: &Path, tolerance: f64, common: &Common) -> CliResult {
     script_failed(&r, None)?;
     // Shared with other checks, never while a render is renaming its pair into place.
     let _lock = statebook::safe_fs::lock(&statebook::safe_fs::resolve(file), false).ok();
-    let report =
-        check::compare_with_saved(file, &session.records(), tolerance).map_err(CliError::Failed)?;
+    let report = check::compare_with_saved(file, &session.records(), tolerance)
+        .map_err(CliError::Notebook)?;
     print!("{}", report.text);
     if report.passed {
         Ok(())
@@ -480,7 +487,7 @@ fn cmd_new(file: &Path) -> CliResult {
 fn cmd_from_session(log: &Path, output: &Path, title: Option<&str>) -> CliResult {
     use statebook::notebook::session_log;
     refuse_existing(output, "from-session")?;
-    let (text, _) = files::read_analysis(log).map_err(CliError::Failed)?;
+    let (text, _) = files::read_analysis(log).map_err(CliError::Notebook)?;
     let stem = output
         .file_stem()
         .map(|s| s.to_string_lossy().replace(['-', '_'], " "))

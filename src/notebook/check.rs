@@ -65,8 +65,8 @@ struct Drift {
     relative: String,
 }
 
-/// Compares the records of a re-run with the saved results file.
-pub fn compare_with_saved(
+/// The work of [`compare_with_saved`], with its error as text.
+fn compare_with_saved_inner(
     analysis: &Path,
     records: &[(String, Value)],
     tolerance: f64,
@@ -95,6 +95,16 @@ pub fn compare_with_saved(
         tolerance,
         &path.display().to_string(),
     ))
+}
+
+/// Compares the records of a re-run with the saved results file.
+/// Errors: [`super::NotebookError::Check`].
+pub fn compare_with_saved(
+    analysis: &Path,
+    records: &[(String, Value)],
+    tolerance: f64,
+) -> Result<CheckReport, super::NotebookError> {
+    compare_with_saved_inner(analysis, records, tolerance).map_err(super::NotebookError::Check)
 }
 
 /// Checks that the report named by a results file carries the hash of exactly these

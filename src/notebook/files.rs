@@ -7,9 +7,8 @@ use std::path::Path;
 /// Largest analysis file accepted (bytes).
 pub const MAX_FILE_BYTES: u64 = 16 * 1024 * 1024;
 
-/// Reads an analysis file: refuses missing, empty, enormous and non-UTF-8 files with a
-/// clear message. Returns the text and its bytes' SHA-256.
-pub fn read_analysis(path: &Path) -> Result<(String, String), String> {
+/// The work of [`read_analysis`], with its error as text.
+fn read_analysis_inner(path: &Path) -> Result<(String, String), String> {
     use std::io::Read;
     // The size is taken from the opened handle (a symlink to a device reads as size 0 by
     // path), and the read is bounded, so nothing can make it read more than the limit.
@@ -63,6 +62,13 @@ pub fn read_analysis(path: &Path) -> Result<(String, String), String> {
         ));
     }
     Ok((text, sha))
+}
+
+/// Reads an analysis file: refuses missing, empty, enormous and non-UTF-8 files with a
+/// clear message. Returns the text and its bytes' SHA-256.
+/// Errors: [`super::NotebookError::Read`].
+pub fn read_analysis(path: &Path) -> Result<(String, String), super::NotebookError> {
+    read_analysis_inner(path).map_err(super::NotebookError::Read)
 }
 
 fn io_words(e: &std::io::Error) -> String {

@@ -157,10 +157,8 @@ pub struct Summary {
     pub left_out: Vec<(usize, String)>,
 }
 
-/// Turns a session log into an analysis file: a title cell naming where it came from,
-/// then every input that ran without error, in order. Inputs that failed or never
-/// finished are left out and listed (with their log lines) in the title cell's prose.
-pub fn to_analysis(log: &str, log_name: &str, title: &str) -> Result<(String, Summary), String> {
+/// The work of [`to_analysis`], with its error as text.
+fn to_analysis_inner(log: &str, log_name: &str, title: &str) -> Result<(String, Summary), String> {
     let entries = entries(log)?;
     let mut body = String::new();
     let mut summary = Summary {
@@ -201,6 +199,18 @@ pub fn to_analysis(log: &str, log_name: &str, title: &str) -> Result<(String, Su
     text.push_str("\n//== Session\n");
     text.push_str(&body);
     Ok((text, summary))
+}
+
+/// Turns a session log into an analysis file: a title cell naming where it came from,
+/// then every input that ran without error, in order. Inputs that failed or never
+/// finished are left out and listed (with their log lines) in the title cell's prose.
+/// Errors: [`super::NotebookError::SessionLog`].
+pub fn to_analysis(
+    log: &str,
+    log_name: &str,
+    title: &str,
+) -> Result<(String, Summary), super::NotebookError> {
+    to_analysis_inner(log, log_name, title).map_err(super::NotebookError::SessionLog)
 }
 
 #[cfg(test)]

@@ -137,8 +137,8 @@ pub fn parse_shard(name: &str, text: &str) -> Result<ShardFile, String> {
     serde_json::from_value(v).map_err(|e| format!("{name} is not a valid shard file: {e}"))
 }
 
-/// Merges shard files (name, text) into the sweep-results file of the whole run.
-pub fn merge(parts: &[(String, String)]) -> Result<String, String> {
+/// The work of [`merge`], with its error as text.
+fn merge_inner(parts: &[(String, String)]) -> Result<String, String> {
     let Some(((first_name, _), _)) = parts.split_first() else {
         return Err("no shard files given".into());
     };
@@ -266,6 +266,12 @@ pub fn merge(parts: &[(String, String)]) -> Result<String, String> {
         &first.statebook_version,
         &merged,
     ))
+}
+
+/// Merges shard files (name, text) into the sweep-results file of the whole run.
+/// Errors: [`super::NotebookError::Merge`].
+pub fn merge(parts: &[(String, String)]) -> Result<String, super::NotebookError> {
+    merge_inner(parts).map_err(super::NotebookError::Merge)
 }
 
 fn short(sha: &str) -> &str {

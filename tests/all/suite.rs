@@ -128,7 +128,7 @@ fn check_cases(path: &Path, text: &str) -> Result<(), String> {
 }
 
 fn check_file(path: &Path) -> Result<(), String> {
-    let (text, sha) = files::read_analysis(path)?;
+    let (text, sha) = files::read_analysis(path).map_err(|e| e.to_string())?;
     if text.lines().next().is_some_and(|l| l.trim() == "//! cases") {
         return check_cases(path, &text);
     }

@@ -354,19 +354,24 @@ fn four_merged_shards_equal_one_run() {
 
     // Missing, duplicate and mismatched shards are refused.
     let e = sweeps::merge(&parts[..3]).unwrap_err();
-    assert!(e.contains("missing shard 2 of 4"), "{e}");
+    assert!(e.message().contains("missing shard 2 of 4"), "{e}");
     let mut dup = parts.clone();
     dup[3] = parts[0].clone();
-    assert!(sweeps::merge(&dup).unwrap_err().contains("given twice"));
+    assert!(sweeps::merge(&dup)
+        .unwrap_err()
+        .message()
+        .contains("given twice"));
     let mut other = parts.clone();
     other[1].1 = other[1].1.replace("\"abc\"", "\"abd\"");
     assert!(sweeps::merge(&other)
         .unwrap_err()
+        .message()
         .contains("different analysis file"));
     let mut split = parts.clone();
     split[2].1 = split[2].1.replace("\"count\":4", "\"count\":5");
     assert!(sweeps::merge(&split)
         .unwrap_err()
+        .message()
         .contains("different splits"));
     let changed = SHARDED.replace("37, 9)", "37, 10)");
     let shard = Shard { index: 2, count: 4 };
@@ -377,9 +382,11 @@ fn four_merged_shards_equal_one_run() {
     );
     assert!(sweeps::merge(&grid)
         .unwrap_err()
+        .message()
         .contains("different case list"));
     assert!(sweeps::merge(&[("x".into(), "{}".into())])
         .unwrap_err()
+        .message()
         .contains("not a statebook shard file"));
 }
 
