@@ -22,7 +22,7 @@ use crate::numeric::linalg::hammarling::{
 use crate::numeric::linalg::schur::{block_eigenvalue, quasi_blocks};
 use crate::numeric::linalg::sylvester::{real_schur, MatrixEquationParams};
 use crate::numeric::lti::system::StateSpace;
-use crate::numeric::lti::transform::{rcond_up_to_state_units, Transformed};
+use crate::numeric::lti::transform::Transformed;
 use nalgebra::{Complex, DMatrix, SVD};
 
 /// Tolerances of balancing and balanced truncation.
@@ -71,15 +71,7 @@ impl Balanced {
     /// The balanced form as a change of coordinates of `sys` (its time domain and signal
     /// names kept), with the condition of `T` up to the units of the states.
     pub fn transformed(self, sys: &StateSpace) -> NumResult<Transformed> {
-        let rc = rcond_up_to_state_units(&self.t, true);
-        let mut system = sys.with_matrices(self.a, self.b, self.c, self.d)?;
-        system.names.states.clear();
-        Ok(Transformed {
-            system,
-            t: self.t,
-            t_inv: self.t_inv,
-            condition: if rc > 0.0 { 1.0 / rc } else { f64::INFINITY },
-        })
+        Transformed::from_parts(sys, (self.a, self.b, self.c), self.t, self.t_inv)
     }
 }
 

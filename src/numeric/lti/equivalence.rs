@@ -435,6 +435,25 @@ pub struct CheckedMinimal {
     pub changed_behaviour: Option<Equivalence>,
 }
 
+impl CheckedMinimal {
+    /// The staircase whose decision removed states first — `("controllability", …)` when
+    /// uncontrollable states went, else `("observability", …)` — with its rank figures.
+    pub fn deciding_staircase(&self) -> (&'static str, super::staircase::RankMargins) {
+        if self.minimal.uncontrollable_removed > 0 {
+            ("controllability", self.minimal.controllability)
+        } else {
+            ("observability", self.minimal.observability)
+        }
+    }
+
+    /// A relative rank tolerance that keeps the weakest dropped coupling: a decade below
+    /// its singular value relative to the scale of the decision.
+    pub fn keeping_tolerance(&self) -> f64 {
+        let (_, m) = self.deciding_staircase();
+        0.1 * m.largest_dropped / m.scale
+    }
+}
+
 /// [`minimal_realization`] of `sys` with relative rank tolerance `tol`, and an a-posteriori
 /// check that removing states kept the input–output behaviour.
 ///
@@ -641,8 +660,17 @@ mod tests {
         for case in 0..60 {
             let n = 3 + case % 5;
             let nu = 1 + case % 2;
-            for scale in [1e-3, 1.0, 1e3] {
-                let sys = planted_uncontrollable(&mut rng, n, nu, scale);
+            for (scale, time) in [(1e-3, 1.0), (1.0, 1.0), (1e3, 1.0), (1.0, 1e-4), (1.0, 1e4)] {
+                // `time` rescales time: (cA, cB, C, D) is the same model with t' = t/c.
+                let base = planted_uncontrollable(&mut rng, n, nu, scale);
+                let sys = base
+                    .with_matrices(
+                        &base.a * time,
+                        &base.b * time,
+                        base.c.clone(),
+                        base.d.clone(),
+                    )
+                    .unwrap();
                 let r = minimal_checked(&sys, None).unwrap();
                 assert_eq!(r.minimal.removed, nu, "case {case}, n = {n}, scale {scale}");
                 assert!(
@@ -674,8 +702,24 @@ mod tests {
         assert!(r.minimal.removed > 0, "the case under test removes states");
         let e = r
             .changed_behaviour
+            .clone()
             .expect("a removal that changes G is reported");
         assert!(e.markov_error > 1e-3 && e.margin > 100.0, "{}", e.reason);
+        // The tolerance the warning suggests keeps every state.
+        let keep = minimal_checked(&copy, Some(r.keeping_tolerance())).unwrap();
+        assert_eq!(keep.minimal.removed, 0);
+        // The same model on a rescaled time axis is judged alike.
+        for c in [1e-4, 1e4] {
+            let fast = copy
+                .with_matrices(&copy.a * c, &copy.b * c, copy.c.clone(), copy.d.clone())
+                .unwrap();
+            let rc = minimal_checked(&fast, None).unwrap();
+            assert!(
+                rc.minimal.removed == 0 || rc.changed_behaviour.is_some(),
+                "time scale {c}: {} states removed silently",
+                rc.minimal.removed
+            );
+        }
         let kept = minimal_checked(&copy, Some(1e-12)).unwrap();
         assert_eq!(kept.minimal.removed, 0);
         assert!(kept.changed_behaviour.is_none());

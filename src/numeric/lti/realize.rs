@@ -199,14 +199,7 @@ pub fn controllable_companion(sys: &StateSpace) -> NumResult<Transformed> {
         what: "T".into(),
         rcond: rc,
     })?;
-    let mut new = sys.with_matrices(ac, bc, cc, sys.d.clone())?;
-    new.names.states.clear();
-    Ok(Transformed {
-        system: new,
-        t,
-        t_inv,
-        condition: 1.0 / rc,
-    })
+    Transformed::from_parts(sys, (ac, bc, cc), t, t_inv)
 }
 
 /// The observable companion realization of a SISO model and its `T` (x = T z).

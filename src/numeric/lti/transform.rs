@@ -69,6 +69,28 @@ pub struct Transformed {
 }
 
 impl Transformed {
+    /// The model `(a, b, c, D)` of `sys` in the coordinates `x = t z` (`t_inv` = `t⁻¹`),
+    /// its time domain and signal names kept and the old state names dropped, with the
+    /// condition of `t` up to the units of the states ([`rcond_up_to_state_units`]): the
+    /// one way a coordinate change built from the model (balanced form, Kalman
+    /// decomposition) becomes a [`Transformed`].
+    pub fn from_parts(
+        sys: &StateSpace,
+        (a, b, c): (DMatrix<f64>, DMatrix<f64>, DMatrix<f64>),
+        t: DMatrix<f64>,
+        t_inv: DMatrix<f64>,
+    ) -> NumResult<Transformed> {
+        let rc = rcond_up_to_state_units(&t, true);
+        let mut system = sys.with_matrices(a, b, c, sys.d.clone())?;
+        system.names.states.clear();
+        Ok(Transformed {
+            system,
+            t,
+            t_inv,
+            condition: if rc > 0.0 { 1.0 / rc } else { f64::INFINITY },
+        })
+    }
+
     /// Whether the change is ill-conditioned enough to say so (`condition` above
     /// [`WARN_CONDITION`]); the rounding it may add is about `condition·ε` relative.
     pub fn ill_conditioned(&self) -> bool {

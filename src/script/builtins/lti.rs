@@ -205,13 +205,8 @@ fn minimal_map(call: &Call, sys: &StateSpace, tol: Option<f64>) -> Rr<Map> {
     let r = eqv::minimal_checked(sys, tol).map_err(call.num())?;
     let k = &r.minimal;
     if let Some(e) = &r.changed_behaviour {
-        let (what, m) = if k.uncontrollable_removed > 0 {
-            ("controllability", k.controllability)
-        } else {
-            ("observability", k.observability)
-        };
-        // A relative tolerance a decade below the dropped coupling keeps it.
-        let keep = 0.1 * m.largest_dropped / m.scale;
+        let (what, m) = r.deciding_staircase();
+        let keep = r.keeping_tolerance();
         call.warn(format_args!(
             "removing {} of {} states changes the input–output behaviour: the reduced \
              model's Markov parameters differ by {:.1e} relative and its frequency response by \

@@ -8,7 +8,7 @@ use super::{
 };
 use crate::numeric::error::{NumError, NumResult};
 use crate::numeric::lti::system::StateSpace;
-use crate::numeric::lti::transform::{rcond_up_to_state_units, Transformed};
+use crate::numeric::lti::transform::Transformed;
 use nalgebra::DMatrix;
 
 /// Dimensions of the four parts of a Kalman decomposition, in their order in the new state.
@@ -70,20 +70,12 @@ impl Kalman {
     /// The decomposition as a change of coordinates of `sys` (its time domain and signal
     /// names kept), with the condition of `T` up to the units of the states.
     pub fn transformed(&self, sys: &StateSpace) -> NumResult<Transformed> {
-        let rc = rcond_up_to_state_units(&self.t, true);
-        let mut system = sys.with_matrices(
-            self.a.clone(),
-            self.b.clone(),
-            self.c.clone(),
-            self.d.clone(),
-        )?;
-        system.names.states.clear();
-        Ok(Transformed {
-            system,
-            t: self.t.clone(),
-            t_inv: self.t_inv.clone(),
-            condition: if rc > 0.0 { 1.0 / rc } else { f64::INFINITY },
-        })
+        Transformed::from_parts(
+            sys,
+            (self.a.clone(), self.b.clone(), self.c.clone()),
+            self.t.clone(),
+            self.t_inv.clone(),
+        )
     }
 }
 
