@@ -55,6 +55,43 @@ pub fn dims(what: &str, m: &DMatrix<f64>, rows: usize, cols: usize) -> NumResult
     Ok(())
 }
 
+/// Fails on the first NaN or infinite entry of the vector `v`, naming its index.
+pub fn finite_values(what: &str, v: &[f64]) -> NumResult<()> {
+    match v.iter().position(|x| !x.is_finite()) {
+        None => Ok(()),
+        Some(i) => Err(NumError::NotFinite {
+            what: what.into(),
+            row: i,
+            col: 0,
+            value: v[i],
+        }),
+    }
+}
+
+/// Fails unless `m` (an input matrix `B`) has one row per state, `n`.
+pub fn rows(what: &str, m: &DMatrix<f64>, n: usize) -> NumResult<()> {
+    if m.nrows() != n {
+        return Err(NumError::shape(
+            what,
+            format!("{n} rows (one per state, as A is {n}×{n})"),
+            shape_of(m),
+        ));
+    }
+    Ok(())
+}
+
+/// Fails unless `m` (an output matrix `C`) has one column per state, `n`.
+pub fn cols(what: &str, m: &DMatrix<f64>, n: usize) -> NumResult<()> {
+    if m.ncols() != n {
+        return Err(NumError::shape(
+            what,
+            format!("{n} columns (one per state, as A is {n}×{n})"),
+            shape_of(m),
+        ));
+    }
+    Ok(())
+}
+
 /// Formats a shape the way error messages write it: `3×4`.
 pub fn shape_of(m: &DMatrix<f64>) -> String {
     format!("{}×{}", m.nrows(), m.ncols())

@@ -55,6 +55,34 @@ impl Rng {
     pub fn matrix(&mut self, rows: usize, cols: usize) -> DMatrix<f64> {
         DMatrix::from_fn(rows, cols, |_, _| self.normal())
     }
+
+    /// A random n×n matrix shifted so that every eigenvalue has real part ≤ −0.5.
+    pub fn stable(&mut self, n: usize) -> DMatrix<f64> {
+        let r = self.matrix(n, n);
+        if n == 0 {
+            return r;
+        }
+        let abscissa = r
+            .complex_eigenvalues()
+            .iter()
+            .map(|z| z.re)
+            .fold(f64::MIN, f64::max);
+        r - DMatrix::identity(n, n) * (abscissa + 0.5)
+    }
+
+    /// A random n×n matrix scaled so that its spectral radius is `radius`.
+    pub fn schur_stable(&mut self, n: usize, radius: f64) -> DMatrix<f64> {
+        let r = self.matrix(n, n);
+        if n == 0 {
+            return r;
+        }
+        let rho = r
+            .complex_eigenvalues()
+            .iter()
+            .map(|z| z.norm())
+            .fold(0.0, f64::max);
+        r * (radius / rho)
+    }
 }
 
 /// Asserts that two matrices (or scalars via 1×1) agree entrywise within

@@ -408,32 +408,6 @@ mod tests {
 
     const SIZES: [usize; 6] = [0, 1, 2, 3, 10, 40];
 
-    fn random_stable(rng: &mut Rng, n: usize) -> DMatrix<f64> {
-        let r = rng.matrix(n, n);
-        if n == 0 {
-            return r;
-        }
-        let abscissa = r
-            .complex_eigenvalues()
-            .iter()
-            .map(|z| z.re)
-            .fold(f64::MIN, f64::max);
-        r - DMatrix::identity(n, n) * (abscissa + 0.5)
-    }
-
-    fn random_schur_stable(rng: &mut Rng, n: usize, radius: f64) -> DMatrix<f64> {
-        let r = rng.matrix(n, n);
-        if n == 0 {
-            return r;
-        }
-        let rho = r
-            .complex_eigenvalues()
-            .iter()
-            .map(|z| z.norm())
-            .fold(0.0, f64::max);
-        r * (radius / rho)
-    }
-
     fn assert_upper_with_nonnegative_diagonal(u: &DMatrix<f64>) {
         for j in 0..u.ncols() {
             assert!(u[(j, j)] >= 0.0, "diagonal entry {j} is {}", u[(j, j)]);
@@ -477,7 +451,7 @@ mod tests {
         let mut rng = Rng::new(21);
         for &n in &SIZES {
             for &m in &[1usize, 3] {
-                let a = random_stable(&mut rng, n);
+                let a = rng.stable(n);
                 let b = rng.matrix(n, m);
                 let u = lyapunov_cholesky(&a, &b).expect("stable");
                 assert_upper_with_nonnegative_diagonal(&u);
@@ -507,7 +481,7 @@ mod tests {
         let mut rng = Rng::new(22);
         for &n in &SIZES {
             for &m in &[1usize, 2] {
-                let a = random_schur_stable(&mut rng, n, 0.95);
+                let a = rng.schur_stable(n, 0.95);
                 let b = rng.matrix(n, m);
                 let u = lyapunov_cholesky_discrete(&a, &b).expect("stable");
                 assert_upper_with_nonnegative_diagonal(&u);
@@ -527,7 +501,7 @@ mod tests {
     #[test]
     fn wide_and_empty_b() {
         let mut rng = Rng::new(23);
-        let a = random_stable(&mut rng, 4);
+        let a = rng.stable(4);
         // More inputs than states.
         let b = rng.matrix(4, 9);
         let u = lyapunov_cholesky(&a, &b).expect("wide B");

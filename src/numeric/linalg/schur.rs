@@ -101,20 +101,7 @@ impl RealSchur {
         let (work, scale) = scaled_into_safe_range(a);
         let (mut q, mut t) = nalgebra::linalg::Hessenberg::new(work).unpack();
         let itmax = params.iterations_per_row.max(1).saturating_mul(n.max(10));
-        match francis_qr(&mut t, &mut q, itmax, true) {
-            Ok(()) => {}
-            Err(None) => {
-                return Err(NumError::Cancelled {
-                    what: "real Schur decomposition".into(),
-                })
-            }
-            Err(Some(row)) => {
-                return Err(NumError::NoConvergence {
-                    what: format!("real Schur decomposition (QR iteration at row {row})"),
-                    iterations: itmax,
-                })
-            }
-        }
+        francis_qr(&mut t, &mut q, itmax, true).map_err(|e| francis_error(e, itmax))?;
         clean_below_quasi_diagonal(&mut t);
         if let Err((i, j)) = quasi_triangular(&t) {
             return Err(NumError::NoConvergence {
@@ -159,20 +146,7 @@ impl RealSchur {
         let itmax = SchurParams::default()
             .iterations_per_row
             .saturating_mul(n.max(10));
-        match francis_qr(&mut t, &mut none, itmax, false) {
-            Ok(()) => {}
-            Err(None) => {
-                return Err(NumError::Cancelled {
-                    what: "real Schur decomposition".into(),
-                })
-            }
-            Err(Some(row)) => {
-                return Err(NumError::NoConvergence {
-                    what: format!("real Schur decomposition (QR iteration at row {row})"),
-                    iterations: itmax,
-                })
-            }
-        }
+        francis_qr(&mut t, &mut none, itmax, false).map_err(|e| francis_error(e, itmax))?;
         let mut out = Vec::with_capacity(n);
         let mut k = 0;
         while k < n {
@@ -360,6 +334,20 @@ pub(crate) fn block_eigenvalues(
 /// [`block_eigenvalues`] (for a complex pair, the member with positive imaginary part).
 pub(crate) fn block_eigenvalue(t: &DMatrix<f64>, start: usize, size: usize) -> Complex<f64> {
     block_eigenvalues(t, start, size).0
+}
+
+/// The error of a QR iteration that stopped: cancelled (`None`) or out of iterations at
+/// `row`.
+fn francis_error(stop: Option<usize>, itmax: usize) -> NumError {
+    match stop {
+        None => NumError::Cancelled {
+            what: "real Schur decomposition".into(),
+        },
+        Some(row) => NumError::NoConvergence {
+            what: format!("real Schur decomposition (QR iteration at row {row})"),
+            iterations: itmax,
+        },
+    }
 }
 
 #[cfg(test)]

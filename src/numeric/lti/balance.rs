@@ -115,7 +115,7 @@ pub fn controllability_gramian(
     dt: f64,
 ) -> NumResult<DMatrix<f64>> {
     let n = check::finite_square("A", a)?;
-    check_rows("B", b, n)?;
+    check::rows("B", b, n)?;
     check::finite("B", b)?;
     check_dt(dt)?;
     let params = MatrixEquationParams::default();
@@ -141,7 +141,7 @@ pub fn observability_gramian(
     dt: f64,
 ) -> NumResult<DMatrix<f64>> {
     let n = check::finite_square("A", a)?;
-    check_cols("C", c, n)?;
+    check::cols("C", c, n)?;
     check::finite("C", c)?;
     check_dt(dt)?;
     let params = MatrixEquationParams::default();
@@ -520,28 +520,6 @@ fn check_dt(dt: f64) -> NumResult<()> {
     Ok(())
 }
 
-fn check_rows(what: &str, m: &DMatrix<f64>, rows: usize) -> NumResult<()> {
-    if m.nrows() != rows {
-        return Err(NumError::shape(
-            what,
-            format!("{rows} rows"),
-            format!("{} rows ({})", m.nrows(), check::shape_of(m)),
-        ));
-    }
-    Ok(())
-}
-
-fn check_cols(what: &str, m: &DMatrix<f64>, cols: usize) -> NumResult<()> {
-    if m.ncols() != cols {
-        return Err(NumError::shape(
-            what,
-            format!("{cols} columns"),
-            format!("{} columns ({})", m.ncols(), check::shape_of(m)),
-        ));
-    }
-    Ok(())
-}
-
 /// Shapes and finiteness of `(A, B, C[, D])` and `dt`; returns `(n, m, p)`.
 fn check_model(
     a: &DMatrix<f64>,
@@ -551,9 +529,9 @@ fn check_model(
     dt: f64,
 ) -> NumResult<(usize, usize, usize)> {
     let n = check::finite_square("A", a)?;
-    check_rows("B", b, n)?;
+    check::rows("B", b, n)?;
     check::finite("B", b)?;
-    check_cols("C", c, n)?;
+    check::cols("C", c, n)?;
     check::finite("C", c)?;
     let (m, p) = (b.ncols(), c.nrows());
     if let Some(d) = d {

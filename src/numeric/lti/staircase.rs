@@ -232,20 +232,8 @@ pub(crate) fn check_abc(
     c: &DMatrix<f64>,
 ) -> NumResult<(usize, usize, usize)> {
     let n = check::finite_square("A", a)?;
-    if b.nrows() != n {
-        return Err(NumError::shape(
-            "B",
-            format!("{n} rows (as many as A)"),
-            check::shape_of(b),
-        ));
-    }
-    if c.ncols() != n {
-        return Err(NumError::shape(
-            "C",
-            format!("{n} columns (as many as A)"),
-            check::shape_of(c),
-        ));
-    }
+    check::rows("B", b, n)?;
+    check::cols("C", c, n)?;
     check::finite("B", b)?;
     check::finite("C", c)?;
     Ok((n, b.ncols(), c.nrows()))
@@ -603,12 +591,12 @@ mod tests {
         let e = controllability_staircase(&a, &DMatrix::zeros(3, 1), &c, None).unwrap_err();
         assert_eq!(
             e.to_string(),
-            "B: expected 2 rows (as many as A), found 3×1"
+            "B: expected 2 rows (one per state, as A is 2×2), found 3×1"
         );
         let e = observability_staircase(&a, &b, &DMatrix::zeros(1, 3), None).unwrap_err();
         assert_eq!(
             e.to_string(),
-            "C: expected 2 columns (as many as A), found 1×3"
+            "C: expected 2 columns (one per state, as A is 2×2), found 1×3"
         );
         let mut bad = a.clone();
         bad[(1, 0)] = f64::NAN;

@@ -410,20 +410,8 @@ fn check_model(
     d: &DMatrix<f64>,
 ) -> NumResult<(usize, usize, usize)> {
     let n = check::finite_square("A", a)?;
-    if b.nrows() != n {
-        return Err(NumError::shape(
-            "B",
-            format!("{n} rows (one per state, as A is {n}×{n})"),
-            check::shape_of(b),
-        ));
-    }
-    if c.ncols() != n {
-        return Err(NumError::shape(
-            "C",
-            format!("{n} columns (one per state, as A is {n}×{n})"),
-            check::shape_of(c),
-        ));
-    }
+    check::rows("B", b, n)?;
+    check::cols("C", c, n)?;
     let (m, p) = (b.ncols(), c.nrows());
     if d.shape() != (p, m) {
         return Err(NumError::shape(

@@ -1,6 +1,7 @@
 //! Jacobians by central differences and the linearisation of a nonlinear model
 //! dx = f(x, u), y = g(x, u) about an operating point.
 
+use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
 use nalgebra::DMatrix;
 
@@ -67,14 +68,7 @@ fn central(f: &mut VectorFn<'_>, x: &[f64], m: usize) -> Result<DMatrix<f64>, Di
 /// naming the variable perturbed.
 pub fn jacobian(f: &mut VectorFn<'_>, x: &[f64], m: usize) -> NumResult<DMatrix<f64>> {
     const WHAT: &str = "jacobian";
-    if let Some(i) = x.iter().position(|v| !v.is_finite()) {
-        return Err(NumError::NotFinite {
-            what: "x".into(),
-            row: i,
-            col: 0,
-            value: x[i],
-        });
-    }
+    check::finite_values("x", x)?;
     central(f, x, m).map_err(|e| match e {
         DiffError::Failed(j, e) => NumError::invalid(
             WHAT,

@@ -13,6 +13,7 @@
 
 use super::dormand_prince::{self, ExplicitEnd};
 use super::radau_iia;
+use crate::numeric::check;
 use crate::numeric::error::{NumError, NumResult};
 
 /// Name used in error messages.
@@ -230,14 +231,7 @@ fn validate(t0: f64, x0: &[f64], t_final: f64, o: &OdeOptions) -> NumResult<Cont
             "expected at least one state variable, found none",
         ));
     }
-    if let Some(i) = x0.iter().position(|v| !v.is_finite()) {
-        return Err(NumError::NotFinite {
-            what: "x0".into(),
-            row: i,
-            col: 0,
-            value: x0[i],
-        });
-    }
+    check::finite_values("x0", x0)?;
     if !t0.is_finite() || !t_final.is_finite() {
         return Err(NumError::invalid(
             WHAT,

@@ -358,14 +358,7 @@ pub fn simulate(
             format!("{}", x0.len()),
         ));
     }
-    if let Some(i) = x0.iter().position(|v| !v.is_finite()) {
-        return Err(NumError::NotFinite {
-            what: "x0".into(),
-            row: i,
-            col: 0,
-            value: x0[i],
-        });
-    }
+    check::finite_values("x0", x0)?;
     if sys.is_discrete() && samples > 1 && (h - sys.dt).abs() > UNIFORM_TOLERANCE * sys.dt {
         return Err(NumError::invalid(
             "t",

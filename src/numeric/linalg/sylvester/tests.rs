@@ -5,34 +5,6 @@ use crate::numeric::testing::Rng;
 
 const SIZES: [usize; 6] = [0, 1, 2, 3, 10, 40];
 
-/// A random matrix shifted so that every eigenvalue has real part ≤ −0.5.
-fn random_stable(rng: &mut Rng, n: usize) -> DMatrix<f64> {
-    let r = rng.matrix(n, n);
-    if n == 0 {
-        return r;
-    }
-    let abscissa = r
-        .complex_eigenvalues()
-        .iter()
-        .map(|z| z.re)
-        .fold(f64::MIN, f64::max);
-    r - DMatrix::identity(n, n) * (abscissa + 0.5)
-}
-
-/// A random matrix scaled so that its spectral radius is `radius`.
-fn random_schur_stable(rng: &mut Rng, n: usize, radius: f64) -> DMatrix<f64> {
-    let r = rng.matrix(n, n);
-    if n == 0 {
-        return r;
-    }
-    let rho = r
-        .complex_eigenvalues()
-        .iter()
-        .map(|z| z.norm())
-        .fold(0.0, f64::max);
-    r * (radius / rho)
-}
-
 fn random_symmetric(rng: &mut Rng, n: usize) -> DMatrix<f64> {
     let m = rng.matrix(n, n);
     &m + m.transpose()
@@ -105,7 +77,7 @@ fn rotation_block_closed_form() {
 fn lyapunov_residuals_on_random_stable_matrices() {
     let mut rng = Rng::new(7);
     for &n in &SIZES {
-        let a = random_stable(&mut rng, n);
+        let a = rng.stable(n);
         let q = random_symmetric(&mut rng, n);
         let x = solve_lyapunov(&a, &q).expect("stable Lyapunov");
         let res = &a * &x + &x * a.transpose() + &q;
@@ -133,7 +105,7 @@ fn lyapunov_residuals_on_random_unstable_matrices() {
 fn discrete_residuals_on_random_matrices() {
     let mut rng = Rng::new(9);
     for &n in &SIZES {
-        let a = random_schur_stable(&mut rng, n, 0.9);
+        let a = rng.schur_stable(n, 0.9);
         let q = random_symmetric(&mut rng, n);
         let x = solve_lyapunov_discrete(&a, &q).expect("discrete Lyapunov");
         let res = &a * &x * a.transpose() - &x + &q;

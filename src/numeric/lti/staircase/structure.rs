@@ -119,13 +119,7 @@ pub fn unobservable_modes(
 /// [`MAX_KRYLOV_ENTRIES`] entries.
 pub fn controllability_matrix(a: &DMatrix<f64>, b: &DMatrix<f64>) -> NumResult<DMatrix<f64>> {
     let n = check::finite_square("A", a)?;
-    if b.nrows() != n {
-        return Err(NumError::shape(
-            "B",
-            format!("{n} rows (as many as A)"),
-            check::shape_of(b),
-        ));
-    }
+    check::rows("B", b, n)?;
     check::finite("B", b)?;
     let m = b.ncols();
     let cols = n
@@ -157,13 +151,7 @@ pub fn controllability_matrix(a: &DMatrix<f64>, b: &DMatrix<f64>) -> NumResult<D
 /// [`MAX_KRYLOV_ENTRIES`] entries.
 pub fn observability_matrix(a: &DMatrix<f64>, c: &DMatrix<f64>) -> NumResult<DMatrix<f64>> {
     let n = check::finite_square("A", a)?;
-    if c.ncols() != n {
-        return Err(NumError::shape(
-            "C",
-            format!("{n} columns (as many as A)"),
-            check::shape_of(c),
-        ));
-    }
+    check::cols("C", c, n)?;
     check::finite("C", c)?;
     Ok(controllability_matrix(&a.transpose(), &c.transpose())
         .map_err(|e| match e {
