@@ -80,7 +80,7 @@ mod tests {
 
     #[test]
     fn complex_with_j() {
-        let st = Style { precision: 5 };
+        let st = Style::with_precision(5);
         assert_eq!(complex(-0.5, 1.3228757, st), "-0.5+1.3229j");
         assert_eq!(complex(2.0, -0.1, st), "2-0.1j");
         assert_eq!(complex(0.0, 1.0, st), "0+1j");

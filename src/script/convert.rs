@@ -6,7 +6,7 @@
 //! be an int or a float; a matrix may be a `Matrix`, an array of arrays of numbers, or a
 //! single number (a 1×1 matrix).
 
-use super::types::{Complex, Matrix};
+use super::types::{Complex, Matrix, Vector};
 use crate::numeric::NumError;
 use nalgebra::DMatrix;
 use rhai::{Array, Dynamic, EvalAltResult, Position, FLOAT, INT};
@@ -94,6 +94,9 @@ pub fn to_count(v: &Dynamic, fname: &str, arg: &str) -> Rr<usize> {
 
 /// A list of numbers from an array (or a row/column `Matrix`).
 pub fn to_f64_vec(v: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<f64>> {
+    if let Some(x) = v.read_lock::<Vector>() {
+        return Ok(x.0.to_vec());
+    }
     if let Some(m) = v.read_lock::<Matrix>() {
         if m.0.nrows() == 1 || m.0.ncols() == 1 {
             return Ok(m.0.iter().copied().collect());
@@ -110,10 +113,44 @@ pub fn to_f64_vec(v: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<f64>> {
             type_name(v)
         )));
     };
-    a.iter()
-        .enumerate()
-        .map(|(k, x)| to_f64(x, fname, &format!("{arg}[{k}]")))
-        .collect()
+    let mut out = Vec::with_capacity(a.len());
+    for (k, x) in a.iter().enumerate() {
+        match number_of(x) {
+            Some(x) => out.push(x),
+            None => return to_f64(x, fname, &format!("{arg}[{k}]")).map(|_| out),
+        }
+    }
+    Ok(out)
+}
+
+/// A list of numbers shared with the value when it is a `Vector` (no copy), else
+/// converted once as [`to_f64_vec`] does. For built-ins that only read long signals.
+pub fn to_shared_vec(v: &Dynamic, fname: &str, arg: &str) -> Rr<std::sync::Arc<Vec<f64>>> {
+    if let Some(x) = v.read_lock::<Vector>() {
+        return Ok(x.0.clone());
+    }
+    to_f64_vec(v, fname, arg).map(std::sync::Arc::new)
+}
+
+/// A matrix shared with the value when it is a `Matrix` (no copy), else converted as
+/// [`to_matrix`] does. For built-ins that only read large matrices.
+pub fn to_shared_matrix(v: &Dynamic, fname: &str, arg: &str) -> Rr<std::sync::Arc<DMatrix<f64>>> {
+    if let Some(m) = v.read_lock::<Matrix>() {
+        return Ok(m.0.clone());
+    }
+    to_matrix(v, fname, arg).map(std::sync::Arc::new)
+}
+
+/// Whether a value is a list of values: an array or a `Vector`.
+pub fn is_list(v: &Dynamic) -> bool {
+    v.is_array() || v.is::<Vector>()
+}
+
+/// The value of an int or a float.
+fn number_of(x: &Dynamic) -> Option<f64> {
+    x.as_float()
+        .ok()
+        .or_else(|| x.as_int().ok().map(|i| i as f64))
 }
 
 /// A list of finite numbers: NaN or an infinity is refused, naming the entry.
@@ -131,7 +168,7 @@ pub fn to_finite_vec(v: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<f64>> {
 /// A matrix: a `Matrix`, an array of arrays of numbers (rows), or a single number.
 pub fn to_matrix(v: &Dynamic, fname: &str, arg: &str) -> Rr<DMatrix<f64>> {
     if let Some(m) = v.read_lock::<Matrix>() {
-        return Ok(m.0.clone());
+        return Ok((*m.0).clone());
     }
     if let Ok(x) = v.as_float() {
         return Ok(DMatrix::from_element(1, 1, x));
@@ -142,8 +179,13 @@ pub fn to_matrix(v: &Dynamic, fname: &str, arg: &str) -> Rr<DMatrix<f64>> {
     if let Some(a) = v.read_lock::<Array>() {
         return rows_to_matrix(&a, fname, arg);
     }
+    let hint = if v.is::<Vector>() {
+        "\nhint: column(v) or row(v) makes a Matrix of a Vector"
+    } else {
+        ""
+    };
     Err(fail(format!(
-        "{fname}: {arg} must be a Matrix or an array of rows, found {}",
+        "{fname}: {arg} must be a Matrix or an array of rows, found {}{hint}",
         type_name(v)
     )))
 }
@@ -231,7 +273,7 @@ pub fn to_complex_vec(v: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<nalgebra::C
 
 /// Wraps a matrix for the script.
 pub fn matrix_value(m: DMatrix<f64>) -> Dynamic {
-    Dynamic::from(Matrix(m))
+    Dynamic::from(Matrix::from(m))
 }
 
 /// An array of `Complex` values.

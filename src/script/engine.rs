@@ -78,6 +78,7 @@ pub fn build(state: &Arc<SessionState>, deadline: Option<Instant>) -> Engine {
     register_display(&mut e, state);
     super::nesting::register(&mut e);
     super::sizes::register(&mut e, limits.string_size, limits.array_size);
+    builtins::vector::register(&mut e, limits.array_size);
     super::stdlib::load(&mut e);
     // The core package's `sleep` has no place in a sandboxed analysis: it holds a run
     // past any deadline (and panicked on sleep(1e300)). Registered functions take

@@ -2,7 +2,7 @@
 //! of a cell's last expression. Numeric values are formatted by [`crate::display`].
 
 use super::types::{Complex, KINDS};
-use crate::display::{self, Style};
+use crate::display::{self, Shown, Style};
 use rhai::{Array, Dynamic, Map};
 
 /// Deepest nesting of arrays and maps shown; deeper parts show as `…` (keeps the display
@@ -68,16 +68,34 @@ fn format_array(a: &Array, style: Style) -> String {
     if let Some(t) = table_of_maps(a, style) {
         return t;
     }
-    let parts: Vec<String> = a.iter().map(|x| inline(x, style)).collect();
-    let one = format!("[{}]", parts.join(", "));
+    let shown = Shown::of(a.len(), display::ROWS, style);
+    let parts: Vec<(Option<usize>, String)> = shown
+        .indices()
+        .map(|k| {
+            (
+                k,
+                k.map_or_else(|| "…".to_string(), |k| inline(&a[k], style)),
+            )
+        })
+        .collect();
+    let count = if shown.hidden > 0 {
+        format!(" ({} items)", a.len())
+    } else {
+        String::new()
+    };
+    let texts: Vec<&str> = parts.iter().map(|(_, p)| p.as_str()).collect();
+    let one = format!("[{}]{count}", texts.join(", "));
     if !one.contains('\n') && one.chars().count() <= 78 {
         return one;
     }
-    if parts.iter().any(|p| p.contains('\n')) {
+    if texts.iter().any(|p| p.contains('\n')) {
         // Multi-line items (matrices, models): one numbered block each.
-        let mut s = format!("array of {}", parts.len());
-        for (k, p) in parts.iter().enumerate() {
-            let label = format!("[{k}] ");
+        let mut s = format!("array of {}", a.len());
+        for (k, p) in &parts {
+            let label = match k {
+                Some(k) => format!("[{k}] "),
+                None => "… ".to_string(),
+            };
             let pad = " ".repeat(label.len());
             for (i, line) in p.lines().enumerate() {
                 s.push_str("\n  ");
@@ -88,11 +106,12 @@ fn format_array(a: &Array, style: Style) -> String {
         return s;
     }
     let mut s = String::from("[\n");
-    for p in parts {
-        s.push_str(&indent(&p));
+    for p in texts {
+        s.push_str(&indent(p));
         s.push_str(",\n");
     }
     s.push(']');
+    s.push_str(&count);
     s
 }
 
@@ -141,9 +160,22 @@ fn table_of_maps(a: &Array, style: Style) -> Option<String> {
         return None;
     }
     let keys: Vec<String> = first.keys().map(|k| k.to_string()).collect();
-    let mut rows = Vec::with_capacity(a.len());
-    for item in a {
-        let m = item.read_lock::<Map>()?;
+    let same_keys = |x: &Dynamic| {
+        x.read_lock::<Map>().is_some_and(|m| {
+            m.len() == keys.len() && keys.iter().all(|k| m.contains_key(k.as_str()))
+        })
+    };
+    if !a.iter().all(same_keys) {
+        return None;
+    }
+    let shown = Shown::of(a.len(), display::ROWS, style);
+    let mut rows = Vec::with_capacity(shown.head + shown.tail + 1);
+    for k in shown.indices() {
+        let Some(k) = k else {
+            rows.push(vec!["⋮".to_string(); keys.len()]);
+            continue;
+        };
+        let m = a[k].read_lock::<Map>()?;
         if m.len() != keys.len() {
             return None;
         }
@@ -158,5 +190,12 @@ fn table_of_maps(a: &Array, style: Style) -> Option<String> {
         }
         rows.push(row);
     }
-    Some(display::table(&keys, &rows))
+    let mut t = display::table(&keys, &rows);
+    if shown.hidden > 0 {
+        t.push_str(&format!(
+            "\n  ({} rows; show(value, #{{ all: true }}) for every row)",
+            a.len()
+        ));
+    }
+    Some(t)
 }

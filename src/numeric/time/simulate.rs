@@ -339,6 +339,25 @@ pub fn simulate(
     x0: Option<&[f64]>,
     options: SimulationOptions,
 ) -> NumResult<Response> {
+    let (y, x) = simulate_outputs(sys, t, u, x0, options)?;
+    Ok(Response {
+        t: t.to_vec(),
+        y,
+        x,
+        u: u.clone(),
+    })
+}
+
+/// As [`simulate`], returning only the outputs `y` (N×p) and, with `keep_states`, the
+/// states (N×n): for a caller that keeps `t` and `u` itself, so that a long simulation
+/// holds one copy of its grid and input.
+pub fn simulate_outputs(
+    sys: &StateSpace,
+    t: &[f64],
+    u: &DMatrix<f64>,
+    x0: Option<&[f64]>,
+    options: SimulationOptions,
+) -> NumResult<(DMatrix<f64>, Option<DMatrix<f64>>)> {
     let h = uniform_step(t)?;
     let (n, m, p, samples) = (sys.order(), sys.inputs(), sys.outputs(), t.len());
     if u.nrows() != samples || u.ncols() != m {
@@ -380,12 +399,10 @@ pub fn simulate(
             ),
         ));
     }
-    Ok(Response {
-        t: t.to_vec(),
-        y: DMatrix::from_vec(samples, p, y),
-        x: xs.map(|v| DMatrix::from_vec(samples, n, v)),
-        u: u.clone(),
-    })
+    Ok((
+        DMatrix::from_vec(samples, p, y),
+        xs.map(|v| DMatrix::from_vec(samples, n, v)),
+    ))
 }
 
 /// A time grid chosen for a model's standard responses.

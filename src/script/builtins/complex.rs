@@ -141,8 +141,12 @@ pub fn register(engine: &mut Engine) {
     engine.register_fn("**", |a: Complex, b: FLOAT| Complex(a.0.powf(b)));
 
     // Complex matrices.
-    engine.register_get("re", |m: &mut ComplexMatrix| Matrix(m.0.map(|z| z.re)));
-    engine.register_get("im", |m: &mut ComplexMatrix| Matrix(m.0.map(|z| z.im)));
+    engine.register_get("re", |m: &mut ComplexMatrix| {
+        Matrix::from(m.0.map(|z| z.re))
+    });
+    engine.register_get("im", |m: &mut ComplexMatrix| {
+        Matrix::from(m.0.map(|z| z.im))
+    });
     engine.register_get("rows", |m: &mut ComplexMatrix| m.0.nrows() as INT);
     engine.register_get("cols", |m: &mut ComplexMatrix| m.0.ncols() as INT);
     engine.register_fn(

@@ -59,7 +59,7 @@ impl Operand {
             return Some(Operand::Tf(t.0.clone()));
         }
         if let Some(m) = v.read_lock::<Matrix>() {
-            return Some(Operand::Gain(m.0.clone()));
+            return Some(Operand::Gain((*m.0).clone()));
         }
         if let Ok(x) = v.as_float() {
             return Some(Operand::Scalar(x));
@@ -324,7 +324,7 @@ crate::builtins! {
     #[family = "design"]
     fn solve_lyapunov(call, A: DMatrix<f64>, Q: DMatrix<f64>) -> Matrix {
         lyapunov::solve_lyapunov(&A, &Q)
-            .map(Matrix)
+            .map(Matrix::from)
             .map_err(call.num())
     }
 
@@ -337,7 +337,7 @@ crate::builtins! {
     #[family = "design"]
     fn solve_lyapunov_discrete(call, A: DMatrix<f64>, Q: DMatrix<f64>) -> Matrix {
         lyapunov::solve_lyapunov_discrete(&A, &Q)
-            .map(Matrix)
+            .map(Matrix::from)
             .map_err(call.num())
     }
 
@@ -356,7 +356,7 @@ crate::builtins! {
     {
         let sol = riccati::solve_riccati(&A, &B, &Q, &R).map_err(call.num())?;
         riccati_warning(&call, sol.u11_condition, &R);
-        Ok(Matrix(sol.x))
+        Ok(Matrix::from(sol.x))
     }
 
     /// the stabilizing solution X of the discrete Riccati equation AᵀXA − X − AᵀXB(R + BᵀXB)⁻¹BᵀXA + Q = 0
@@ -376,7 +376,7 @@ crate::builtins! {
     ) -> Matrix {
         let sol = riccati::solve_riccati_discrete(&A, &B, &Q, &R).map_err(call.num())?;
         riccati_warning(&call, sol.u11_condition, &R);
-        Ok(Matrix(sol.x))
+        Ok(Matrix::from(sol.x))
     }
 
     /// a state-feedback gain K with eig(A − B K) = poles
@@ -401,7 +401,7 @@ crate::builtins! {
                 r.eigenvector_condition
             ));
         }
-        Ok(Matrix(r.gain))
+        Ok(Matrix::from(r.gain))
     }
 
     /// the linear-quadratic state-feedback regulator u = −K x

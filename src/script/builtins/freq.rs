@@ -2,11 +2,11 @@
 //! `h2_norm`, `hinf_norm`. The numerics are `crate::numeric::freq`.
 
 use crate::numeric::freq::{curves, grid, margins, norms, response};
-use crate::script::convert::{float_array, type_name, Rr};
+use crate::script::convert::{float_array, to_f64_vec, type_name, Rr};
 use crate::script::declare::{Call, Model, Param};
-use crate::script::types::{Complex, ComplexMatrix};
+use crate::script::types::{Complex, ComplexMatrix, Vector};
 use nalgebra::DMatrix;
-use rhai::{Array, Dynamic, Map, FLOAT, INT};
+use rhai::{Dynamic, Map, FLOAT, INT};
 
 /// Most frequencies accepted in one call.
 const MAX_FREQUENCIES: usize = 1_000_000;
@@ -35,23 +35,19 @@ impl Param for Frequencies {
             let w = vec![call.number(&w, arg)?];
             return Ok(Frequencies { w, scalar: true });
         }
-        let Some(a) = w.read_lock::<Array>() else {
+        if !crate::script::convert::is_list(&w) {
             return Err(call.fail(format_args!(
-                "{arg} must be a frequency in rad/s or an array of them, found {}",
+                "{arg} must be a frequency in rad/s or a list of them, found {}",
                 type_name(&w)
             )));
-        };
-        if a.len() > MAX_FREQUENCIES {
+        }
+        let w = to_f64_vec(&w, call.name, arg)?;
+        if w.len() > MAX_FREQUENCIES {
             return Err(call.fail(format_args!(
                 "at most {MAX_FREQUENCIES} frequencies in one call, found {}",
-                a.len()
+                w.len()
             )));
         }
-        let w: Vec<f64> = a
-            .iter()
-            .enumerate()
-            .map(|(k, x)| call.number(x, &format!("{arg}[{k}]")))
-            .collect::<Rr<_>>()?;
         Ok(Frequencies { w, scalar: false })
     }
 }
@@ -136,7 +132,7 @@ crate::builtins! {
         let siso = sys.inputs() == 1 && sys.outputs() == 1;
         let r = response::frequency_response(&sys, &w).map_err(call.num())?;
         let mut m = Map::new();
-        m.insert("frequency".into(), Dynamic::from_array(float_array(&w)));
+        m.insert("frequency".into(), Dynamic::from(Vector::from(w)));
         m.insert(
             "response".into(),
             Dynamic::from_array(r.into_iter().map(|g| response_value(g, siso)).collect()),
@@ -185,10 +181,9 @@ crate::builtins! {
         }
         let c = curves::bode_at(&sys, &w).map_err(call.num())?;
         let mut m = Map::new();
-        let list = |v: &[f64]| Dynamic::from_array(float_array(v));
-        m.insert("frequency".into(), list(&c.frequency));
-        m.insert("magnitude_db".into(), list(&c.magnitude_db));
-        m.insert("phase_deg".into(), list(&c.phase_deg));
+        m.insert("frequency".into(), Dynamic::from(Vector::from(c.frequency)));
+        m.insert("magnitude_db".into(), Dynamic::from(Vector::from(c.magnitude_db)));
+        m.insert("phase_deg".into(), Dynamic::from(Vector::from(c.phase_deg)));
         Ok(m)
     }
 

@@ -5,14 +5,14 @@ use crate::script::convert::{
     check_entries, complex_array, float_array, num, to_finite_vec, type_name, Rr,
 };
 use crate::script::declare::{Call, Param};
-use crate::script::types::{Complex, ComplexMatrix, Matrix};
+use crate::script::types::{Complex, ComplexMatrix, Matrix, Vector};
 use nalgebra::DMatrix;
 use rhai::{Array, Dynamic, Engine, Map, FLOAT, INT};
 
 /// Registers the power operator `A ^ k` (the rest are declared in `BUILTINS`).
 pub fn register(engine: &mut Engine) {
     engine.register_fn("**", |a: Matrix, k: INT| -> Rr<Matrix> {
-        dense::power(&a.0, k).map(Matrix).map_err(num("^"))
+        dense::power(&a.0, k).map(Matrix::from).map_err(num("^"))
     });
 }
 
@@ -54,7 +54,7 @@ impl Param for Exponent {
     const KIND: &'static str = "number | Complex | Matrix";
     fn from_arg(v: Dynamic, call: &Call, arg: &str) -> Rr<Self> {
         if let Some(m) = v.read_lock::<Matrix>() {
-            return Ok(Exponent::Matrix(m.0.clone()));
+            return Ok(Exponent::Matrix((*m.0).clone()));
         }
         if let Some(z) = v.read_lock::<Complex>() {
             return Ok(Exponent::Complex(z.0));
@@ -100,7 +100,7 @@ crate::builtins! {
             .first()
             .map_or(0, |r| r.iter().map(|b| b.ncols()).sum());
         check_entries(call.name, total_rows, total_cols)?;
-        dense::block(&rows).map(Matrix).map_err(call.num())
+        dense::block(&rows).map(Matrix::from).map_err(call.num())
     }
 
     /// the inverse of a square, non-singular matrix
@@ -112,7 +112,7 @@ crate::builtins! {
     ///     matrix([[2, 1], [1, 1]]).inverse()
     #[family = "linear algebra"]
     fn inverse(call, A: DMatrix<f64>) -> Matrix {
-        dense::inverse(&A).map(Matrix).map_err(call.num())
+        dense::inverse(&A).map(Matrix::from).map_err(call.num())
     }
 
     /// the determinant of a square matrix (LU with partial pivoting)
@@ -178,7 +178,7 @@ crate::builtins! {
         Ok(match x {
             Exponent::Number(x) => Dynamic::from_float(x.exp()),
             Exponent::Complex(z) => Dynamic::from(Complex(z.exp())),
-            Exponent::Matrix(A) => Dynamic::from(Matrix(expm::expm(&A).map_err(call.num())?)),
+            Exponent::Matrix(A) => Dynamic::from(Matrix::from(expm::expm(&A).map_err(call.num())?)),
         })
     }
 
@@ -188,7 +188,7 @@ crate::builtins! {
     ///     solve(matrix([[2, 1], [1, 3]]), column([1, 2]))
     #[family = "linear algebra"]
     fn solve(call, A: DMatrix<f64>, B: DMatrix<f64>) -> Matrix {
-        dense::solve(&A, &B).map(Matrix).map_err(call.num())
+        dense::solve(&A, &B).map(Matrix::from).map_err(call.num())
     }
 
     /// whether two matrices (or numbers) agree to within tol
@@ -303,9 +303,9 @@ crate::builtins! {
     /// example:
     ///     linear_grid(0, 1, 5)   // [0, 0.25, 0.5, 0.75, 1]
     #[family = "linear algebra"]
-    fn linear_grid(call, low: FLOAT, high: FLOAT, count: usize) -> Array as "[float]" {
+    fn linear_grid(call, low: FLOAT, high: FLOAT, count: usize) -> Vector {
         dense::linear_grid(low, high, count)
-            .map(|v| float_array(&v))
+            .map(Vector::from)
             .map_err(call.num())
     }
 
@@ -316,9 +316,9 @@ crate::builtins! {
     /// example:
     ///     log_grid(0.1, 100, 4)   // [0.1, 1, 10, 100]
     #[family = "linear algebra"]
-    fn log_grid(call, low: FLOAT, high: FLOAT, count: usize) -> Array as "[float]" {
+    fn log_grid(call, low: FLOAT, high: FLOAT, count: usize) -> Vector {
         dense::log_grid(low, high, count)
-            .map(|v| float_array(&v))
+            .map(Vector::from)
             .map_err(call.num())
     }
 }

@@ -400,7 +400,7 @@ crate::builtins! {
     ///     dc_gain(transfer_function([4], [1, 2]))   // 2
     #[family = "models"]
     fn dc_gain(call, sys: Model) -> Matrix {
-        properties::dc_gain(&sys).map(Matrix).map_err(call.num())
+        properties::dc_gain(&sys).map(Matrix::from).map_err(call.num())
     }
 
     /// every pole strictly in the left half plane (|z| < 1 when discrete)
@@ -638,7 +638,7 @@ crate::builtins! {
     #[family = "transforms"]
     fn controllability_matrix(call, sys: Model) -> Matrix {
         staircase::controllability_matrix(&sys.a, &sys.b)
-            .map(Matrix)
+            .map(Matrix::from)
             .map_err(call.num())
     }
 
@@ -649,7 +649,7 @@ crate::builtins! {
     #[family = "transforms"]
     fn observability_matrix(call, sys: Model) -> Matrix {
         staircase::observability_matrix(&sys.a, &sys.c)
-            .map(Matrix)
+            .map(Matrix::from)
             .map_err(call.num())
     }
 
@@ -707,7 +707,7 @@ crate::builtins! {
     #[family = "transforms"]
     fn controllability_gramian(call, sys: Model) -> Matrix {
         balance::controllability_gramian(&sys.a, &sys.b, sys.dt)
-            .map(Matrix)
+            .map(Matrix::from)
             .map_err(call.num())
     }
 
@@ -720,7 +720,7 @@ crate::builtins! {
     #[family = "transforms"]
     fn observability_gramian(call, sys: Model) -> Matrix {
         balance::observability_gramian(&sys.a, &sys.c, sys.dt)
-            .map(Matrix)
+            .map(Matrix::from)
             .map_err(call.num())
     }
 
@@ -776,6 +776,6 @@ crate::builtins! {
     ///     find_transform(plant, balanced_realization(plant).system)
     #[family = "equivalence"]
     fn find_transform(call, a: Model, b: Model) -> Matrix {
-        eqv::find_transform(&a, &b).map(Matrix).map_err(call.num())
+        eqv::find_transform(&a, &b).map(Matrix::from).map_err(call.num())
     }
 }

@@ -61,7 +61,7 @@ fn entry(m: &DMatrix<f64>, i: usize, j: usize, fname: &str) -> Rr<f64> {
 }
 
 fn scale(m: &Matrix, s: FLOAT) -> Matrix {
-    Matrix(&m.0 * s)
+    Matrix::from(&*m.0 * s)
 }
 
 /// Registers matrix construction, access and operators.
@@ -78,18 +78,18 @@ pub fn register(engine: &mut Engine) {
     });
     // Operators.
     engine.register_fn("+", |a: Matrix, b: Matrix| -> Rr<Matrix> {
-        ops::add(&a.0, &b.0).map(Matrix).map_err(num("+"))
+        ops::add(&a.0, &b.0).map(Matrix::from).map_err(num("+"))
     });
     engine.register_fn("-", |a: Matrix, b: Matrix| -> Rr<Matrix> {
-        ops::sub(&a.0, &b.0).map(Matrix).map_err(num("-"))
+        ops::sub(&a.0, &b.0).map(Matrix::from).map_err(num("-"))
     });
     engine.register_fn("*", |a: Matrix, b: Matrix| -> Rr<Matrix> {
         if a.0.ncols() == b.0.nrows() {
             check_entries("*", a.0.nrows(), b.0.ncols())?;
         }
-        ops::mul(&a.0, &b.0).map(Matrix).map_err(num("*"))
+        ops::mul(&a.0, &b.0).map(Matrix::from).map_err(num("*"))
     });
-    engine.register_fn("-", |a: Matrix| Matrix(-a.0));
+    engine.register_fn("-", |a: Matrix| Matrix::from(-a.into_inner()));
     engine.register_fn("*", |a: Matrix, s: FLOAT| scale(&a, s));
     engine.register_fn("*", |a: Matrix, s: INT| scale(&a, s as FLOAT));
     engine.register_fn("*", |s: FLOAT, a: Matrix| scale(&a, s));
@@ -120,7 +120,7 @@ crate::builtins! {
     #[family = "matrices"]
     fn set(call, &mut A: Matrix, i: usize, j: usize, value: FLOAT) -> () {
         entry(&A.0, i, j, call.name)?;
-        A.0[(i, j)] = value;
+        A.make_mut()[(i, j)] = value;
         Ok(())
     }
 
@@ -265,6 +265,6 @@ crate::builtins! {
                 A.ncols()
             )));
         }
-        Ok(Matrix(A.view((row, col), (rows, cols)).into_owned()))
+        Ok(Matrix::from(A.view((row, col), (rows, cols)).into_owned()))
     }
 }

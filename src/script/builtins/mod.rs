@@ -18,6 +18,7 @@ pub mod plot;
 pub mod stats;
 pub mod sweep;
 pub mod time;
+pub mod vector;
 
 use super::docs::Doc;
 use crate::script::output::Output;
@@ -55,6 +56,7 @@ pub const DOC_TABLES: &[&[Doc]] = &[
     time::DOCS,
     design::DOCS,
     sweep::DOCS,
+    vector::DOCS,
 ];
 
 /// A figure value as a cell output, if `v` is a figure.

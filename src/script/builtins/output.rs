@@ -7,7 +7,7 @@ use crate::script::docs::Doc;
 use crate::script::output::Output;
 use crate::script::state::{self, SessionState};
 use crate::script::{json, show};
-use rhai::{Dynamic, Engine};
+use rhai::{Dynamic, Engine, Map};
 use std::sync::Arc;
 
 /// The help page of `print`, the engine's own function (the rest are declared in
@@ -39,14 +39,39 @@ fn to_json(v: Dynamic) -> Rr<String> {
 crate::builtins! {
     /// displays a value richly (matrices aligned, figures drawn in reports)
     ///
-    /// The value of a cell's last expression is shown the same way.
+    /// The value of a cell's last expression is shown the same way. Long values (more
+    /// than 20 rows or items, more than 12 columns) show their first and last entries
+    /// around ⋮ and …; the option #{ all: true } shows every entry (to_json and write_csv
+    /// also give all of them).
     ///
     /// example:
     ///     show(identity(2));
+    ///     show(linear_grid(0, 1, 101), #{ all: true });
     #[family = "output and files"]
     fn show(call, value: Dynamic) -> () {
         if let Some(s) = state::of(call.ctx()) {
             emit(&s, value);
+        }
+        Ok(())
+    }
+    fn show(call, value: Dynamic, options: Map) -> () {
+        let mut all = false;
+        for (k, v) in &options {
+            match (k.as_str(), v.as_bool()) {
+                ("all", Ok(b)) => all = b,
+                ("all", Err(t)) => {
+                    return Err(call.fail(format_args!("option all must be true or false, found {t}")))
+                }
+                (other, _) => return Err(call.fail(format_args!("unknown option '{other}' (known: all)"))),
+            }
+        }
+        if let Some(s) = state::of(call.ctx()) {
+            if let Some(o) = crate::script::builtins::figure_output(&value) {
+                s.push(o);
+            } else {
+                let style = Style { full: all, ..s.style() };
+                s.push(Output::Value(show::format(&value, style)));
+            }
         }
         Ok(())
     }
@@ -124,7 +149,7 @@ crate::builtins! {
             return Err(call.fail(format_args!("digits must be 1 to 17, found {digits}")));
         }
         if let Some(s) = state::of(call.ctx()) {
-            s.set_style(Style { precision: digits });
+            s.set_style(Style::with_precision(digits));
         }
         Ok(())
     }

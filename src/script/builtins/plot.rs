@@ -169,7 +169,7 @@ fn gap_vec(v: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<f64>> {
 
 fn series_list(y: &Dynamic, fname: &str, arg: &str) -> Rr<Vec<Vec<f64>>> {
     if let Some(a) = y.read_lock::<Array>() {
-        if a.first().is_some_and(|v| v.is_array()) {
+        if a.first().is_some_and(crate::script::convert::is_list) {
             return a
                 .iter()
                 .enumerate()

@@ -8,14 +8,16 @@ use crate::numeric::time::metrics::{self, StepMetrics};
 use crate::numeric::time::ode::{self, OdeMethod, OdeOptions};
 use crate::numeric::time::simulate::{self as sim, Hold, Horizon, SimulationOptions};
 use crate::script::convert::{
-    fail, float_array, matrix_value, num, system_value, to_count, to_f64, to_f64_vec, to_matrix,
-    to_str, to_system, type_name, Rr,
+    fail, float_array, num, system_value, to_count, to_f64, to_f64_vec, to_shared_matrix,
+    to_shared_vec, to_str, to_system, type_name, Rr,
 };
+use crate::script::declare::Call;
 use crate::script::docs::Doc;
 use crate::script::state;
-use crate::script::types::Response;
+use crate::script::types::{Matrix, Response, Samples, Vector};
 use nalgebra::DMatrix;
 use rhai::{Array, Dynamic, Engine, FnPtr, Map, NativeCallContext, FLOAT, INT};
+use std::sync::Arc;
 
 mod plots;
 pub use plots::BUILTINS as PLOT_BUILTINS;
@@ -55,7 +57,7 @@ fn model_responses(sys: &StateSpace, rs: Vec<sim::Response>, kind: &str) -> Dyna
                     .unwrap_or_else(|| format!("input {j}"))
             });
             response_value(Response {
-                data,
+                data: data.into(),
                 kind: kind.into(),
                 outputs: sys.names.outputs.clone(),
                 label,
@@ -110,7 +112,7 @@ fn free(s: &Dynamic, x0: &Dynamic, t_final: Option<&Dynamic>) -> Rr<Dynamic> {
     let h = horizon(&sys, t_final, f)?;
     let data = sim::free_response(&sys, &x0, h).map_err(num(f))?;
     Ok(response_value(Response {
-        data,
+        data: data.into(),
         kind: "free response".into(),
         outputs: sys.names.outputs.clone(),
         label: None,
@@ -118,26 +120,28 @@ fn free(s: &Dynamic, x0: &Dynamic, t_final: Option<&Dynamic>) -> Rr<Dynamic> {
     }))
 }
 
-/// The input of `simulate`: a Matrix (one row per sample), an array of numbers (one
-/// input), or a function of t returning a number or an array of m numbers.
-fn input_matrix(ctx: &NativeCallContext, u: &Dynamic, t: &[f64], m: usize) -> Rr<DMatrix<f64>> {
-    let f = "simulate";
+/// The input of `simulate`: a Matrix (one row per sample; shared, not copied), a Vector
+/// or an array of numbers (one input), or a function of t returning a number or an array
+/// of m numbers.
+fn input_matrix(call: &Call, u: &Dynamic, t: &[f64], m: usize) -> Rr<Arc<DMatrix<f64>>> {
     let n = t.len();
     if let Some(fp) = crate::script::convert::as_fnptr(u) {
         let mut out = DMatrix::zeros(n, m);
         for (k, &tk) in t.iter().enumerate() {
             let v: Dynamic = fp
-                .call_within_context(ctx, (tk as FLOAT,))
-                .map_err(|e| fail(format!("{f}: the input function failed at t = {tk}: {e}")))?;
-            let row = if v.is_array() {
-                to_f64_vec(&v, f, &format!("u({tk})"))?
+                .call_within_context(call.ctx(), (tk as FLOAT,))
+                .map_err(|e| {
+                    call.fail(format_args!("the input function failed at t = {tk}: {e}"))
+                })?;
+            let row = if crate::script::convert::is_list(&v) {
+                to_f64_vec(&v, call.name, &format!("u({tk})"))?
             } else {
-                vec![to_f64(&v, f, &format!("u({tk})"))?]
+                vec![to_f64(&v, call.name, &format!("u({tk})"))?]
             };
             if row.len() != m {
-                return Err(fail(format!(
-                    "{f}: the input function returned {} values at t = {tk}, expected {m} (one \
-                     per input)",
+                return Err(call.fail(format_args!(
+                    "the input function returned {} values at t = {tk}, expected {m} (one per \
+                     input)",
                     row.len()
                 )));
             }
@@ -145,39 +149,38 @@ fn input_matrix(ctx: &NativeCallContext, u: &Dynamic, t: &[f64], m: usize) -> Rr
                 out[(k, l)] = x;
             }
         }
-        return Ok(out);
+        return Ok(Arc::new(out));
     }
-    let numbers = u
-        .read_lock::<Array>()
-        .is_some_and(|a| a.first().is_some_and(|x| x.is::<INT>() || x.is::<FLOAT>()));
+    let numbers = u.is::<Vector>()
+        || u.read_lock::<Array>()
+            .is_some_and(|a| a.first().is_some_and(|x| x.is::<INT>() || x.is::<FLOAT>()));
     if numbers {
-        let v = to_f64_vec(u, f, "u")?;
+        let v = to_shared_vec(u, call.name, "u")?;
         if m != 1 {
-            return Err(fail(format!(
-                "{f}: u: an array of numbers is one input, but the model has {m} inputs\nhint: \
-                 pass a Matrix with one row per sample and one column per input"
+            return Err(call.fail(format_args!(
+                "u: a list of numbers is one input, but the model has {m} inputs\nhint: pass a \
+                 Matrix with one row per sample and one column per input"
             )));
         }
         if v.len() != n {
-            return Err(fail(format!(
-                "{f}: u: expected {n} values (one per sample of t), found {}",
+            return Err(call.fail(format_args!(
+                "u: expected {n} values (one per sample of t), found {}",
                 v.len()
             )));
         }
-        return Ok(DMatrix::from_column_slice(n, 1, &v));
+        return Ok(Arc::new(DMatrix::from_column_slice(n, 1, &v)));
     }
     if u.is::<INT>() || u.is::<FLOAT>() {
-        return Err(fail(format!(
-            "{f}: u must be a Matrix, an array or a function of t, found a number\nhint: for a \
+        return Err(call.fail(format_args!(
+            "u must be a Matrix, an array or a function of t, found a number\nhint: for a \
              constant input write |t| {}",
-            to_f64(u, f, "u")?
+            to_f64(u, call.name, "u")?
         )));
     }
-    let mat = to_matrix(u, f, "u")?;
+    let mat = to_shared_matrix(u, call.name, "u")?;
     if mat.nrows() != n || mat.ncols() != m {
-        return Err(fail(format!(
-            "{f}: u: expected {n}×{m} (one row per sample of t, one column per input), found \
-             {}×{}",
+        return Err(call.fail(format_args!(
+            "u: expected {n}×{m} (one row per sample of t, one column per input), found {}×{}",
             mat.nrows(),
             mat.ncols()
         )));
@@ -197,20 +200,21 @@ fn check_keys(m: &Map, fname: &str, known: &[&str]) -> Rr<()> {
     Ok(())
 }
 
+/// `simulate(sys, t, u[, x0[, options]])`: the time grid and the input are read where
+/// they are (a Vector's or a Matrix's numbers are shared, not copied).
 fn simulate(
-    ctx: &NativeCallContext,
+    call: &Call,
     s: &Dynamic,
     t: &Dynamic,
     u: &Dynamic,
     x0: Option<&Dynamic>,
     options: Option<&Map>,
 ) -> Rr<Dynamic> {
-    let f = "simulate";
-    let sys = to_system(s, f, "sys")?;
-    let t = to_f64_vec(t, f, "t")?;
-    sim::uniform_step(&t).map_err(num(f))?;
+    let sys = call.system(s, "sys")?;
+    let t = to_shared_vec(t, call.name, "t")?;
+    sim::uniform_step(&t).map_err(call.num())?;
     let x0 = match x0 {
-        Some(v) if !v.is_unit() => Some(to_f64_vec(v, f, "x0")?),
+        Some(v) if !v.is_unit() => Some(to_f64_vec(v, call.name, "x0")?),
         _ => None,
     };
     let mut opts = SimulationOptions {
@@ -218,31 +222,38 @@ fn simulate(
         keep_states: t.len().saturating_mul(sys.order()) <= STATE_KEEP_LIMIT,
     };
     if let Some(m) = options {
-        check_keys(m, f, &["hold", "states"])?;
+        check_keys(m, call.name, &["hold", "states"])?;
         if let Some(h) = m.get("hold") {
-            opts.hold = Some(match to_str(h, f, "option hold")?.as_str() {
+            opts.hold = Some(match to_str(h, call.name, "option hold")?.as_str() {
                 "zoh" => Hold::Zoh,
                 "linear" => Hold::Linear,
                 other => {
-                    return Err(fail(format!(
-                        "{f}: hold must be \"zoh\" or \"linear\", found \"{other}\""
+                    return Err(call.fail(format_args!(
+                        "hold must be \"zoh\" or \"linear\", found \"{other}\""
                     )))
                 }
             });
         }
         if let Some(v) = m.get("states") {
             opts.keep_states = v.as_bool().map_err(|_| {
-                fail(format!(
-                    "{f}: option states must be true or false, found {}",
+                call.fail(format_args!(
+                    "option states must be true or false, found {}",
                     type_name(v)
                 ))
             })?;
         }
     }
-    let u = input_matrix(ctx, u, &t, sys.inputs())?;
-    let data = sim::simulate(&sys, &t, &u, x0.as_deref(), opts).map_err(num(f))?;
+    let u = input_matrix(call, u, &t, sys.inputs())?;
+    let (y, x) = sim::simulate_outputs(&sys, &t, &u, x0.as_deref(), opts).map_err(call.num())?;
+    // The response keeps the caller's grid and input themselves.
+    let samples = Samples {
+        t,
+        u,
+        y: Arc::new(y),
+        x: x.map(Arc::new),
+    };
     Ok(response_value(Response {
-        data,
+        data: samples,
         kind: "simulation".into(),
         outputs: sys.names.outputs.clone(),
         label: None,
@@ -405,6 +416,9 @@ fn call_vector(
             })
             .collect();
     }
+    if let Some(x) = v.read_lock::<Vector>() {
+        return Ok(x.0.to_vec());
+    }
     if let Some(m) = v.read_lock::<crate::script::types::Matrix>() {
         if m.0.ncols() == 1 || m.0.nrows() == 1 {
             return Ok(m.0.iter().copied().collect());
@@ -456,7 +470,7 @@ fn ode_options(m: &Map, t_final: f64) -> Rr<OdeOptions> {
         o.max_step = Some(to_f64(v, f, "max_step")?);
     }
     if let Some(v) = m.get("samples") {
-        o.samples = Some(if v.is_array() {
+        o.samples = Some(if crate::script::convert::is_list(v) {
             to_f64_vec(v, f, "samples")?
         } else {
             let count = to_count(v, f, "samples")?;
@@ -529,7 +543,8 @@ fn integrate(
             y: x.clone(),
             x: Some(x),
             u: DMatrix::zeros(rows, 0),
-        },
+        }
+        .into(),
         kind: "ODE solution".into(),
         outputs: (0..n).map(|i| format!("x[{i}]")).collect(),
         label: None,
@@ -570,14 +585,12 @@ fn linearize_fn(
 /// Registers the properties of a `Response` (`resp.t`, `resp.y`, …); the time-domain
 /// functions are declared in `BUILTINS`.
 pub fn register(engine: &mut Engine) {
-    engine.register_get("t", |r: &mut Response| {
-        Dynamic::from_array(float_array(&r.data.t))
-    });
-    engine.register_get("y", |r: &mut Response| matrix_value(r.data.y.clone()));
-    engine.register_get("u", |r: &mut Response| matrix_value(r.data.u.clone()));
+    engine.register_get("t", |r: &mut Response| Vector(r.data.t.clone()));
+    engine.register_get("y", |r: &mut Response| Matrix(r.data.y.clone()));
+    engine.register_get("u", |r: &mut Response| Matrix(r.data.u.clone()));
     engine.register_get("x", |r: &mut Response| -> Rr<Dynamic> {
         match &r.data.x {
-            Some(x) => Ok(matrix_value(x.clone())),
+            Some(x) => Ok(Dynamic::from(Matrix(x.clone()))),
             None => Err(fail(
                 "response: the states were not kept for this run (samples × states above \
                  1000000, or states: false)\nhint: pass #{ states: true } to simulate",
@@ -695,15 +708,15 @@ crate::builtins! {
     ///     r.y
     #[family = "time domain"]
     fn simulate(call, sys: Dynamic, t: Dynamic, u: Dynamic) -> Dynamic as "Response" {
-        simulate(call.ctx(), &sys, &t, &u, None, None)
+        simulate(&call, &sys, &t, &u, None, None)
     }
     fn simulate(call, sys: Dynamic, t: Dynamic, u: Dynamic, x0: Dynamic) -> Dynamic as "Response" {
-        simulate(call.ctx(), &sys, &t, &u, Some(&x0), None)
+        simulate(&call, &sys, &t, &u, Some(&x0), None)
     }
     fn simulate(
         call, sys: Dynamic, t: Dynamic, u: Dynamic, x0: Dynamic, options: Map,
     ) -> Dynamic as "Response" {
-        simulate(call.ctx(), &sys, &t, &u, Some(&x0), Some(&options))
+        simulate(&call, &sys, &t, &u, Some(&x0), Some(&options))
     }
 
     /// 10–90 % rise time, 2 % settling time, overshoot (%), peak and final value
@@ -775,7 +788,7 @@ pub fn response_json(r: &Response) -> serde_json::Value {
     serde_json::json!({
         "t": serde_json::Value::Array(d.t.iter().map(|&v| float(v)).collect()),
         "y": matrix(&d.y),
-        "x": d.x.as_ref().map(matrix).unwrap_or(serde_json::Value::Null),
+        "x": d.x.as_ref().map(|x| matrix(x)).unwrap_or(serde_json::Value::Null),
         "u": matrix(&d.u),
     })
 }

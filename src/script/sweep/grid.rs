@@ -64,9 +64,12 @@ fn factorial(m: &Map, max_cases: usize) -> Rr<Cases> {
     let mut total: usize = 1;
     for (k, v) in m.iter() {
         check_name(k)?;
-        let lv: Vec<Dynamic> = match v.read_lock::<Array>() {
-            Some(a) => a.iter().map(Dynamic::flatten_clone).collect(),
-            None => vec![v.flatten_clone()],
+        let lv: Vec<Dynamic> = if let Some(a) = v.read_lock::<Array>() {
+            a.iter().map(Dynamic::flatten_clone).collect()
+        } else if let Some(x) = v.read_lock::<crate::script::types::Vector>() {
+            x.0.iter().map(|&x| Dynamic::from_float(x)).collect()
+        } else {
+            vec![v.flatten_clone()]
         };
         if lv.is_empty() {
             return Err(fail(format!("sweep: grid parameter '{k}' has no values")));

@@ -38,9 +38,6 @@ type EncodedRow = (
     Option<serde_json::Map<String, serde_json::Value>>,
 );
 
-/// Rows shown before the display elides the rest.
-const SHOWN_ROWS: usize = 20;
-
 impl Table {
     /// All column names: parameters, then results.
     pub fn columns(&self) -> Vec<String> {
@@ -154,11 +151,13 @@ impl Table {
         if failures > 0 {
             headers.push(ERROR_COLUMN.into());
         }
-        let rows: Vec<Vec<String>> = self
-            .rows
-            .iter()
-            .take(SHOWN_ROWS)
-            .map(|r| {
+        let shown = display::Shown::of(self.rows.len(), display::ROWS, style);
+        let rows: Vec<Vec<String>> = shown
+            .indices()
+            .map(|k| {
+                let Some(r) = k.map(|k| &self.rows[k]) else {
+                    return vec!["⋮".to_string(); headers.len()];
+                };
                 let mut cells = vec![r.case.to_string()];
                 cells.extend(r.values.iter().map(|v| Self::cell(v, style)));
                 if failures > 0 {
@@ -169,10 +168,11 @@ impl Table {
             .collect();
         s.push('\n');
         s.push_str(display::table(&headers, &rows).trim_end());
-        if self.rows.len() > SHOWN_ROWS {
+        if shown.hidden > 0 {
             s.push_str(&format!(
-                "\n  … {} more rows (all of them: .rows, .column(name), .save_csv(path))",
-                self.rows.len() - SHOWN_ROWS
+                "\n  {} rows not shown (all of them: show(table, #{{ all: true }}), .rows, \
+                 .column(name), .save_csv(path))",
+                shown.hidden
             ));
         }
         s

@@ -11,11 +11,13 @@ mod complex;
 mod matrix;
 mod model;
 mod response;
+mod vector;
 
 pub use complex::{Complex, ComplexMatrix};
 pub use matrix::Matrix;
 pub use model::{Figure, System, TransferFunction};
-pub use response::Response;
+pub use response::{Response, Samples};
+pub use vector::Vector;
 
 use crate::display::Style;
 use rhai::Dynamic;
@@ -83,6 +85,7 @@ pub const fn kind<T: ValueType>() -> Kind {
 /// maps, functions).
 pub const KINDS: &[Kind] = &[
     kind::<Matrix>(),
+    kind::<Vector>(),
     kind::<Complex>(),
     kind::<ComplexMatrix>(),
     kind::<System>(),

@@ -1,13 +1,40 @@
 //! `Response`: a time response as scripts see it.
 
 use crate::numeric::time::simulate::Response as Data;
+use nalgebra::DMatrix;
+use std::sync::Arc;
+
+/// The samples of a response, shared: reading `.t` or `.y` hands out the same numbers
+/// without a copy.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Samples {
+    /// Sample times in seconds.
+    pub t: Arc<Vec<f64>>,
+    /// Outputs, N×p.
+    pub y: Arc<DMatrix<f64>>,
+    /// States, N×n; `None` when not kept.
+    pub x: Option<Arc<DMatrix<f64>>>,
+    /// Inputs, N×m.
+    pub u: Arc<DMatrix<f64>>,
+}
+
+impl From<Data> for Samples {
+    fn from(d: Data) -> Self {
+        Samples {
+            t: Arc::new(d.t),
+            y: Arc::new(d.y),
+            x: d.x.map(Arc::new),
+            u: Arc::new(d.u),
+        }
+    }
+}
 
 /// A time response (`.t`, `.y`, `.x`, `.u`, one row per sample) with the names that plots
 /// and displays use.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Response {
     /// The samples.
-    pub data: Data,
+    pub data: Samples,
     /// What produced it, in words ("step response", "simulation", "ODE solution" …).
     pub kind: String,
     /// Names of the outputs (empty: unnamed).

@@ -14,7 +14,7 @@ use rhai::{Array, Dynamic, Map};
 fn curve(r: &Response, label: Option<String>) -> ResponseCurve {
     let d = &r.data;
     ResponseCurve {
-        t: d.t.clone(),
+        t: d.t.to_vec(),
         outputs: (0..d.y.ncols())
             .map(|i| d.y.column(i).iter().copied().collect())
             .collect(),
@@ -116,7 +116,7 @@ fn plot_step(v: &Dynamic, o: Option<&Map>) -> Rr<Figure> {
                 (None, false, false) => None,
             };
             let r = Response {
-                data,
+                data: data.into(),
                 kind: "step response".into(),
                 outputs: s.names.outputs.clone(),
                 label: None,
