@@ -309,6 +309,20 @@ def main():
                 job = f"simulate 10 states {steps:.0e} samples ({what})"
                 add(job, sim and sim.get("median_s"), r["median_s"], f"scipy.signal.{refname}" + thr(r), 1 / 50)
                 add(job, sim and sim.get("median_s"), loop and loop["median_s"], "reference loop (multiply-add limit)", 3.0)
+        # The script layer (benches/kernels/script.rs): the same discrete simulation from
+        # analysis text, t from linear_grid; growth of push; one small built-in per step.
+        ssim = sbget("script_simulate_discrete", 10, steps=1_000_000)
+        ksim = sbget("simulate_discrete", 10, steps=1_000_000)
+        rd = refget("dlsim", 10, steps=1_000_000)
+        job = "script simulate 10 states 1e+06 samples (discrete, t from linear_grid)"
+        add(job, ssim and ssim["median_s"], rd["median_s"], "scipy.signal.dlsim" + thr(rd), 1 / 50)
+        add(job, ssim and ssim["median_s"], ksim and ksim["median_s"], "statebook kernel job", 1.3)
+        p5, p6 = sbget("script_push", 100_000), sbget("script_push", 1_000_000)
+        add("script 1e6 push (vs 10 × 1e5 push: linear growth)", p6 and p6["median_s"],
+            p5 and 10 * p5["median_s"], "10 × the 1e5-push job", 1.2)
+        lc, lb = sbget("script_loop_call", 100_000), sbget("script_loop_bare", 100_000)
+        add("script loop 1e5 steps calling A.get(0, 0)", lc and lc["median_s"], lb and lb["median_s"],
+            "the same loop without the call", None)
         demo = sbget("demo_drive_shaft")
         add("demo drive-shaft-reduction end to end", demo and demo["median_s"], None, "—", None)
         return rows, sbget

@@ -8,6 +8,7 @@
 //! cargo bench --bench kernels -- --quick           # fewer repeats (smoke test)
 //! cargo bench --bench kernels -- --only eig,expm   # only jobs whose name starts so
 //! cargo bench --bench kernels -- --n 50,200         # only these sizes
+//! cargo bench --bench kernels -- --only script      # the script-layer jobs (kernels/script.rs)
 //! ```
 //!
 //! Inputs are seeded (splitmix64, Box–Muller normals) and well conditioned:
@@ -37,6 +38,9 @@ use statebook::numeric::time::simulate::{simulate, SimulationOptions};
 use std::hint::black_box;
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
+
+#[path = "kernels/script.rs"]
+mod script;
 
 /// splitmix64 with Box–Muller normals (the generator of the crate's tests).
 struct Rng(u64);
@@ -377,6 +381,7 @@ fn simulation(b: &mut Bench) {
     b.input("sim_Ad".into(), || rows(&ad));
     b.input("sim_Bd".into(), || rows(&bd));
     b.input("sim_dt".into(), || json!(dt));
+    script::script_layer(b, &ad, &bd, &cm, dt);
     if !b.wanted("sim") && !b.wanted("mac") {
         return;
     }

@@ -92,10 +92,15 @@ impl Session {
         let limits = self.state.limits.clone();
         let stack = crate::guard::stack_for(limits.call_depth);
         // The scope as it was, for locating a panic. Taken and dropped on the evaluation
-        // thread: cloning and dropping deeply nested data needs its large stack.
+        // thread: cloning and dropping deeply nested data needs its large stack. Only a
+        // small scope is kept: copying a large one before every cell or REPL line would
+        // make a long analysis quadratic (a panic is an internal error; without the copy it
+        // is reported without its line).
         let mut snapshot: Option<Scope<'static>> = None;
         let result = crate::guard::run(stack, || {
-            snapshot.replace(self.scope.clone());
+            if small_scope(&self.scope) {
+                snapshot.replace(self.scope.clone());
+            }
             let r = limits.enter(|| self.eval_unguarded(code));
             drop(snapshot.take());
             r
@@ -287,5 +292,57 @@ impl Session {
             .iter_functions()
             .map(|f| f.name.to_string())
             .collect()
+    }
+}
+
+/// Values (counting the items of arrays and maps, at any depth) a scope may hold for
+/// [`Session::eval`] to keep a copy of it for locating a panic.
+const SNAPSHOT_VALUES: usize = 4096;
+
+/// Whether a scope holds at most [`SNAPSHOT_VALUES`] values; stops counting there, so the
+/// test costs O(1) however large the scope.
+fn small_scope(scope: &Scope) -> bool {
+    fn count(v: &Dynamic, left: &mut usize) -> bool {
+        if *left == 0 {
+            return false;
+        }
+        *left -= 1;
+        if let Some(a) = v.read_lock::<rhai::Array>() {
+            return a.iter().all(|x| count(x, left));
+        }
+        if let Some(m) = v.read_lock::<rhai::Map>() {
+            return m.values().all(|x| count(x, left));
+        }
+        true
+    }
+    let mut left = SNAPSHOT_VALUES;
+    scope.iter_raw().all(|(_, _, v)| count(v, &mut left))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn only_a_small_scope_is_copied_before_an_evaluation() {
+        let mut scope = Scope::new();
+        scope.push("x", 1.0_f64);
+        scope.push("names", vec![Dynamic::from("a"); 10]);
+        assert!(small_scope(&scope));
+        let big: rhai::Array = (0..SNAPSHOT_VALUES as i64).map(Dynamic::from).collect();
+        scope.push("big", big);
+        assert!(!small_scope(&scope), "the count stops at the limit");
+        // Deep values are built, counted and dropped on a large stack, as the session does.
+        let deep_is_small = crate::guard::run(256 << 20, || {
+            let mut deep = Dynamic::from(rhai::Array::new());
+            for _ in 0..10 * SNAPSHOT_VALUES {
+                deep = Dynamic::from(vec![deep]);
+            }
+            let mut nested = Scope::new();
+            nested.push("deep", deep);
+            small_scope(&nested)
+        })
+        .expect("no panic");
+        assert!(!deep_is_small, "nesting counts each level");
     }
 }
