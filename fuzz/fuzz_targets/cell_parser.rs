@@ -16,10 +16,10 @@ fuzz_target!(|data: &[u8]| {
     let doc = parse(text);
     let mut cells = Vec::new();
     for cell in &doc.cells {
-        let padded = cell.padded_code();
+        let padded = cell.code_text();
         let padded_lines: Vec<&str> = padded.split('\n').collect();
         for l in cell.lines.iter().filter(|l| l.kind == LineKind::Code) {
-            assert_eq!(padded_lines.get(l.number - 1).copied(), Some(l.text.as_str()));
+            assert_eq!(padded_lines.get(l.number - cell.first_line()).copied(), Some(l.text.as_str()));
         }
         cells.push(CellRun {
             title: cell.title.clone(),

@@ -96,14 +96,11 @@ impl Cell {
             .any(|l| l.kind == LineKind::Code && !l.text.trim().is_empty())
     }
 
-    /// The code as the engine sees it: every other line of the file blank, so that line
-    /// and column numbers of the engine are those of the file.
-    pub fn padded_code(&self) -> String {
+    /// The code as the engine sees it: the cell's lines with every line that is not code
+    /// blank, so that line k of the text is line `first_line() + k − 1` of the file (the
+    /// session adds the lines before; see `Session::eval_at`).
+    pub fn code_text(&self) -> String {
         let mut s = String::new();
-        let first = self.first_line();
-        for _ in 1..first {
-            s.push('\n');
-        }
         for l in &self.lines {
             if l.kind == LineKind::Code {
                 s.push_str(&l.text);
@@ -191,7 +188,7 @@ mod tests {
         assert_eq!(d.cells[0].code(), "let a = 1;");
         assert_eq!(d.cells[1].first_line(), 5);
         assert_eq!(
-            d.cells[1].padded_code().lines().nth(5),
+            d.cells[1].code_text().lines().nth(1),
             Some("let b = a + 1;")
         );
         assert_eq!(d.line_count, 6);

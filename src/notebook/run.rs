@@ -21,7 +21,7 @@ pub fn run_document(
     for cell in &doc.cells {
         let mut outputs = Vec::new();
         if cell.has_code() {
-            let result = session.eval(&cell.padded_code());
+            let result = session.eval_at(&cell.code_text(), cell.first_line().saturating_sub(1));
             outputs.extend(session.take_outputs());
             match result {
                 Ok(v) => outputs.extend(session.show_value(v)),

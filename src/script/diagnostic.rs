@@ -42,6 +42,31 @@ fn pos(p: Position) -> (Option<usize>, Option<usize>) {
     (p.line(), p.position())
 }
 
+/// Where evaluated pieces of the file being run start in it. Each cell is compiled on its
+/// own (not padded with the lines before it, which made a long file quadratic and, past
+/// the engine's 65 535-line positions, placed errors on the wrong line), so a position
+/// the engine reports is a line of its piece: of the code being evaluated (`top`) or of
+/// the cell that defined the script function it is in (`functions`, by name; a later
+/// definition of the same name replaces an earlier one, as it does for calls).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct LineMap {
+    /// Lines of the file before the code being evaluated.
+    pub top: usize,
+    /// Lines of the file before the cell that defined each script function.
+    pub functions: std::collections::HashMap<String, usize>,
+}
+
+impl LineMap {
+    /// The line in the file of line `line` of the piece of `function` (`None`: the code
+    /// being evaluated).
+    fn shift(&self, function: Option<&str>, line: usize) -> usize {
+        let before = function
+            .and_then(|f| self.functions.get(f).copied())
+            .unwrap_or(self.top);
+        line.saturating_add(before)
+    }
+}
+
 /// The file an `import "path"` reads (as the module resolver names it).
 pub fn module_file(path: &str) -> String {
     if path.ends_with(".sbook") {
@@ -73,11 +98,11 @@ impl ScriptError {
         }
     }
 
-    /// From a parse error.
-    pub fn from_parse(e: &ParseError) -> Self {
+    /// From a parse error in code that starts after `lines_before` lines of its file.
+    pub fn from_parse(e: &ParseError, lines_before: usize) -> Self {
         let (line, column) = pos(e.position());
         ScriptError {
-            line,
+            line: line.map(|l| l + lines_before),
             column,
             ..ScriptError::plain(format!("syntax: {}", e.err_type()))
         }
@@ -88,9 +113,14 @@ impl ScriptError {
     /// in, and naming the way there. A call's position is in the file of the function
     /// (or module) around it; the engine tags each call with the file its function was
     /// defined in (the module's source name; empty for the file being run).
-    pub fn from_eval(e: &EvalAltResult) -> Self {
+    ///
+    /// Lines of the file being run are placed by `lines` ([`LineMap`]).
+    pub fn from_eval(e: &EvalAltResult, lines: &LineMap) -> Self {
         let mut calls = Vec::new();
         let mut file: Option<String> = None;
+        // The script function of the file being run whose code holds the current position
+        // (`None`: the code being evaluated).
+        let mut owner: Option<&str> = None;
         let mut cur = e;
         // Module prefixes for errors whose innermost part has no position of its own.
         let mut modules = Vec::new();
@@ -98,22 +128,33 @@ impl ScriptError {
             match cur {
                 EvalAltResult::ErrorInFunctionCall(name, source, inner, p) => {
                     if let (Some(l), c) = pos(*p) {
+                        let line = if file.is_none() {
+                            lines.shift(owner, l)
+                        } else {
+                            l
+                        };
                         calls.push(CallSite {
                             what: format!("in {name}()"),
                             file: file.clone(),
-                            line: l,
+                            line,
                             column: c.unwrap_or(1),
                         });
                     }
                     file = (!source.is_empty()).then(|| source.to_string());
+                    owner = Some(name.as_str());
                     cur = inner;
                 }
                 EvalAltResult::ErrorInModule(name, inner, p) => {
                     if let (Some(l), c) = pos(*p) {
+                        let line = if file.is_none() {
+                            lines.shift(owner, l)
+                        } else {
+                            l
+                        };
                         calls.push(CallSite {
                             what: format!("in module {name}"),
                             file: file.clone(),
-                            line: l,
+                            line,
                             column: c.unwrap_or(1),
                         });
                     }
@@ -126,6 +167,9 @@ impl ScriptError {
         }
         calls.reverse();
         let (mut line, mut column) = pos(cur.position());
+        if file.is_none() {
+            line = line.map(|l| lines.shift(owner, l));
+        }
         let mut message = describe(cur);
         if line.is_none() {
             // No position of its own: the nearest call or import is where it happened.

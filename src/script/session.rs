@@ -1,7 +1,7 @@
 //! A session: one script engine with its scope, functions, sandbox and limits, shared by
 //! the notebook runner (one session per analysis file) and the REPL (one per terminal).
 
-use super::diagnostic::ScriptError;
+use super::diagnostic::{LineMap, ScriptError};
 use super::output::Output;
 use super::state::SessionState;
 use crate::sandbox::{Limits, Sandbox};
@@ -41,6 +41,8 @@ pub struct Session {
     scope: Scope<'static>,
     lib: AST,
     state: Arc<SessionState>,
+    /// Where the evaluated pieces and the script functions start in their file.
+    lines: LineMap,
 }
 
 impl Drop for Session {
@@ -76,6 +78,7 @@ impl Session {
             scope: Scope::new(),
             lib: AST::empty(),
             state,
+            lines: LineMap::default(),
         }
     }
 
@@ -86,6 +89,14 @@ impl Session {
     /// The evaluation runs under the panic guard (see [`guard`]): on a large stack, and a
     /// panic becomes an internal error naming the line it happened on.
     pub fn eval(&mut self, code: &str) -> Result<Dynamic, ScriptError> {
+        self.eval_at(code, 0)
+    }
+
+    /// As [`Session::eval`], for code that starts after `lines_before` lines of its file
+    /// (a cell of an analysis file): error positions, and those of the functions it
+    /// defines, are lines of the file.
+    pub fn eval_at(&mut self, code: &str, lines_before: usize) -> Result<Dynamic, ScriptError> {
+        self.lines.top = lines_before;
         self.state
             .operations
             .store(0, std::sync::atomic::Ordering::Relaxed);
@@ -129,10 +140,15 @@ impl Session {
         let ast = self
             .engine
             .compile_with_scope(&self.scope, code)
-            .map_err(|e| ScriptError::from_parse(&e))?;
+            .map_err(|e| ScriptError::from_parse(&e, self.lines.top))?;
         self.keep_imports(&ast);
+        for f in ast.iter_functions() {
+            self.lines
+                .functions
+                .insert(f.name.to_string(), self.lines.top);
+        }
         let merged = self.lib.merge(&ast);
-        self.state.sweep.set_library(&merged);
+        self.state.sweep.set_library(&merged, &self.lines);
         let result = self
             .engine
             .eval_ast_with_scope::<Dynamic>(&mut self.scope, &merged);
@@ -140,7 +156,7 @@ impl Session {
         lib.clear_statements();
         self.lib = lib;
         result.map_err(|e| {
-            let mut se = ScriptError::from_eval(&e);
+            let mut se = ScriptError::from_eval(&e, &self.lines);
             if let (Some(f), Some(l)) = (&se.file, se.line) {
                 se.file_line = self.state.module_line(f, l).map(Into::into);
             }
@@ -180,7 +196,7 @@ impl Session {
                     inner = i;
                 }
                 matches!(inner, rhai::EvalAltResult::ErrorTooManyOperations(_))
-                    .then(|| ScriptError::from_eval(&e))
+                    .then(|| ScriptError::from_eval(&e, &self.lines))
             })
         });
         self.engine.set_max_operations(self.state.limits.operations);

@@ -45,10 +45,10 @@ fn fuzz_regressions_do_not_crash() {
         // The parser target.
         let doc = parse(&text);
         for cell in &doc.cells {
-            let padded = cell.padded_code();
+            let padded = cell.code_text();
             let lines: Vec<&str> = padded.split('\n').collect();
             for l in cell.lines.iter().filter(|l| l.kind == LineKind::Code) {
-                if lines.get(l.number - 1).copied() != Some(l.text.as_str()) {
+                if lines.get(l.number - cell.first_line()).copied() != Some(l.text.as_str()) {
                     failures.push(format!("{}: line {} misplaced", path.display(), l.number));
                 }
             }

@@ -293,3 +293,33 @@ fn committed_demo_results_still_check() {
     }
     assert!(checked >= 1, "no demo has committed results");
 }
+
+#[test]
+fn errors_in_a_long_file_point_at_their_own_lines() {
+    // Past the engine's 65 535-line positions, and through a function defined cells
+    // earlier, called directly and from a sweep case.
+    let mut src = String::from("//== Helpers\nfn boom(x) {\n    x.inverse()\n}\n");
+    src.push_str("//== Filler\n");
+    for k in 0..70_000 {
+        src.push_str(&format!("//> note {k}\n"));
+    }
+    src.push_str(
+        "//== A sweep\nlet t = sweep(#{ k: [1, 2] }, |p| boom(zero_matrix(2, 2)));\n\
+         require(t.errors[0].contains(\"line 3\"), t.errors[0]);\n\
+         //== Late\nlet m = boom(zero_matrix(2, 2));\n",
+    );
+    let call_line = src.lines().count();
+    assert!(call_line > 70_000);
+    let dir = temp_dir("long-file-lines");
+    let r = run_in(&dir, &src);
+    let e = run::first_error(&r).expect("the late cell fails");
+    assert!(
+        e.contains("x.sbook:3:"),
+        "the error is inside boom, line 3: {e}"
+    );
+    assert!(
+        e.contains(&format!("called at line {call_line}")),
+        "the call is on line {call_line}: {e}"
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}

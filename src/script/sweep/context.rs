@@ -7,6 +7,7 @@
 //! that sweeps nested inside a case function run whole, unlogged and unsharded.
 
 use super::log::SweepLog;
+use crate::script::diagnostic::LineMap;
 use rhai::{Module, Shared, AST};
 use std::sync::atomic::{AtomicBool, AtomicU64, AtomicUsize, Ordering};
 use std::sync::{Arc, Mutex, MutexGuard};
@@ -64,6 +65,7 @@ fn lock<T>(m: &Mutex<T>) -> MutexGuard<'_, T> {
 #[derive(Default)]
 pub struct SweepContext {
     library: Mutex<Arc<AST>>,
+    lines: Mutex<Arc<LineMap>>,
     modules: Mutex<Vec<(String, Shared<Module>)>>,
     deadline: Mutex<Option<Instant>>,
     plan: Mutex<SweepPlan>,
@@ -84,9 +86,19 @@ impl std::fmt::Debug for SweepContext {
 }
 
 impl SweepContext {
-    /// Keeps the function definitions of `ast` (statements dropped) for worker engines.
-    pub fn set_library(&self, ast: &AST) {
+    /// Keeps the function definitions of `ast` (statements dropped) for worker engines,
+    /// with where they are in the file.
+    pub fn set_library(&self, ast: &AST, lines: &LineMap) {
         *lock(&self.library) = Arc::new(ast.clone_functions_only());
+        *lock(&self.lines) = Arc::new(LineMap {
+            top: 0,
+            functions: lines.functions.clone(),
+        });
+    }
+
+    /// Where the script functions of the library are in the file.
+    pub fn lines(&self) -> Arc<LineMap> {
+        lock(&self.lines).clone()
     }
 
     /// The script functions defined so far.

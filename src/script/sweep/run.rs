@@ -59,6 +59,7 @@ struct Worker {
     engine: Engine,
     state: Arc<SessionState>,
     library: Arc<AST>,
+    lines: Arc<crate::script::diagnostic::LineMap>,
 }
 
 impl Worker {
@@ -76,6 +77,7 @@ impl Worker {
         Worker {
             engine,
             library: state.sweep.library(),
+            lines: state.sweep.lines(),
             state,
         }
     }
@@ -90,7 +92,7 @@ impl Worker {
         let r = crate::guard::catch(|| f.call::<Dynamic>(&self.engine, &self.library, (arg,)));
         let result = match r {
             Ok(Ok(v)) => Ok(v.flatten()),
-            Ok(Err(e)) => Err(describe(&e)),
+            Ok(Err(e)) => Err(describe(&e, &self.lines)),
             Err(what) => Err(format!(
                 "internal error: statebook failed on this case ({what})"
             )),
@@ -103,8 +105,8 @@ impl Worker {
 }
 
 /// An engine error as one line: message, `(line L, column C)` and the call chain.
-fn describe(e: &rhai::EvalAltResult) -> String {
-    let se = crate::script::diagnostic::ScriptError::from_eval(e);
+fn describe(e: &rhai::EvalAltResult, lines: &crate::script::diagnostic::LineMap) -> String {
+    let se = crate::script::diagnostic::ScriptError::from_eval(e, lines);
     let mut lines = se.message.lines();
     let mut s = lines.next().unwrap_or("").to_string();
     if let Some(l) = se.line {
