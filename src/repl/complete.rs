@@ -1,7 +1,7 @@
 //! The rustyline helper: completion of built-ins, variables and functions, and the
 //! multi-line validator.
 
-use super::input::is_incomplete;
+use super::input::Entry;
 use rustyline::completion::{Completer, Pair};
 use rustyline::highlight::Highlighter;
 use rustyline::hint::Hinter;
@@ -12,12 +12,17 @@ use std::sync::{Arc, Mutex};
 /// Completion and validation for the prompt.
 pub struct ReplHelper {
     names: Arc<Mutex<Vec<String>>>,
+    /// The entry as last validated, so a long paste is scanned once, not once a line.
+    entry: Mutex<Entry>,
 }
 
 impl ReplHelper {
     /// A helper reading session names (variables, functions) from `names`.
     pub fn new(names: Arc<Mutex<Vec<String>>>) -> Self {
-        ReplHelper { names }
+        ReplHelper {
+            names,
+            entry: Mutex::default(),
+        }
     }
 }
 
@@ -68,7 +73,9 @@ impl Completer for ReplHelper {
 
 impl Validator for ReplHelper {
     fn validate(&self, ctx: &mut ValidationContext<'_>) -> rustyline::Result<ValidationResult> {
-        if is_incomplete(ctx.input()) {
+        let mut entry = self.entry.lock().unwrap_or_else(|p| p.into_inner());
+        entry.set(ctx.input());
+        if entry.is_incomplete() {
             Ok(ValidationResult::Incomplete)
         } else {
             Ok(ValidationResult::Valid(None))

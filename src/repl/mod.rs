@@ -11,7 +11,7 @@ use crate::notebook::session_log;
 use crate::script::output::Output;
 use crate::{Session, SessionOptions};
 use complete::ReplHelper;
-use input::{is_incomplete, Command};
+use input::{Command, Entry};
 use rustyline::error::ReadlineError;
 use std::io::{BufRead, IsTerminal, Write};
 use std::path::PathBuf;
@@ -230,7 +230,7 @@ impl Repl {
         let stdin = std::io::stdin();
         let (mut out, mut err) = (std::io::stdout().lock(), std::io::stderr().lock());
         self.log = self.open_log(&mut err);
-        let mut buffer = String::new();
+        let mut buffer = Entry::default();
         let mut failed = false;
         let mut reader = stdin.lock();
         let mut number = 0usize;
@@ -265,25 +265,23 @@ impl Repl {
                     continue;
                 }
             };
-            if buffer.is_empty() && line.trim().is_empty() {
+            if buffer.text().is_empty() && line.trim().is_empty() {
                 continue;
             }
-            if !buffer.is_empty() {
-                buffer.push('\n');
-            }
-            buffer.push_str(&line);
-            if is_incomplete(&buffer) {
+            buffer.push_line(&line);
+            if buffer.is_incomplete() {
                 continue;
             }
-            if matches!(input::command(&buffer), Some(Command::Quit)) {
-                buffer.clear();
+            if matches!(input::command(buffer.text()), Some(Command::Quit)) {
+                buffer.take();
                 break;
             }
-            let code = std::mem::take(&mut buffer);
+            let code = buffer.take();
             failed |= !self.run(&code, &mut out, &mut err);
         }
-        if !buffer.trim().is_empty() {
-            failed |= !self.run(&buffer, &mut out, &mut err);
+        if !buffer.text().trim().is_empty() {
+            let code = buffer.take();
+            failed |= !self.run(&code, &mut out, &mut err);
         }
         let _ = out.flush();
         u8::from(failed)
