@@ -7,7 +7,7 @@ use crate::script::convert::{
 use crate::script::declare::Call;
 use crate::script::docs::Doc;
 use crate::script::state;
-use crate::script::types::Matrix;
+use crate::script::types::{Matrix, Vector};
 use nalgebra::DMatrix;
 use rhai::{Array, Dynamic, Engine, FLOAT, INT};
 
@@ -122,6 +122,40 @@ crate::builtins! {
         entry(&A.0, i, j, call.name)?;
         A.make_mut()[(i, j)] = value;
         Ok(())
+    }
+
+    /// column j (0-based) of a matrix as a Vector: one signal of a response or a CSV file
+    ///
+    /// example:
+    ///     let r = step_response(plant);
+    ///     let y0 = column_of(r.y, 0);
+    ///     y0[-1]
+    #[family = "matrices"]
+    fn column_of(call, &mut A: Matrix, j: usize) -> Vector {
+        if j >= A.0.ncols() {
+            return Err(call.fail(format_args!(
+                "column {j} is outside the {}×{} matrix",
+                A.0.nrows(),
+                A.0.ncols()
+            )));
+        }
+        Ok(Vector::from(A.0.column(j).iter().copied().collect::<Vec<_>>()))
+    }
+
+    /// row i (0-based) of a matrix as a Vector
+    ///
+    /// example:
+    ///     row_of(matrix([[1, 2], [3, 4]]), 1)   // [3, 4]
+    #[family = "matrices"]
+    fn row_of(call, &mut A: Matrix, i: usize) -> Vector {
+        if i >= A.0.nrows() {
+            return Err(call.fail(format_args!(
+                "row {i} is outside the {}×{} matrix",
+                A.0.nrows(),
+                A.0.ncols()
+            )));
+        }
+        Ok(Vector::from(A.0.row(i).iter().copied().collect::<Vec<_>>()))
     }
 
     /// the entries as an array of rows of floats
