@@ -366,25 +366,81 @@ fn cmd_run(
         shard,
         keep_log: shard.is_some() || sweep_results.is_some(),
     };
-    let (r, session, sha) = execute_planned(file, common, plan)?;
-    print!("{}", run::transcript(&r));
-    script_failed(&r, plan.keep_log.then_some("no sweep results written"))?;
-    let logs = session.sweep_logs();
-    let (path, text) = match shard {
-        Some(s) => (
+    let out = match shard {
+        Some(s) => Some(
             sweep_results
                 .map(Path::to_path_buf)
                 .unwrap_or_else(|| sweeps::default_shard_path(file, s)),
-            sweeps::shard_text(&sha, s, &logs),
         ),
-        None => match sweep_results {
-            Some(p) => (p.to_path_buf(), sweeps::run_results_text(&sha, &logs)),
-            None => return Ok(()),
-        },
+        None => sweep_results.map(Path::to_path_buf),
+    };
+    // Before the first case runs: a missing folder is made, an unwritable one refused.
+    if let Some(p) = &out {
+        ready_to_write(p)?;
+    }
+    let (r, session, sha) = execute_planned(file, common, plan)?;
+    print!("{}", run::transcript(&r));
+    let logs = session.sweep_logs();
+    let Some(path) = out else {
+        return script_failed(&r, None);
+    };
+    let text = match shard {
+        Some(s) => {
+            // A shard run delivers its slice even when a later cell fails on the partial
+            // tables (a plot of the whole grid, a check of every case): what follows the
+            // sweeps only makes sense on the merged results.
+            let stopped = match run::first_error(&r) {
+                Some(_) if logs.is_empty() => {
+                    return script_failed(&r, Some("no shard written: no sweep had run"))
+                }
+                Some(e) => Some(stopped_at(e)),
+                None => None,
+            };
+            if let Some(st) = &stopped {
+                eprintln!(
+                    "note: line {} failed on this shard's partial sweep tables; the shard holds \
+                     the {} sweep{} run before it (a shard run writes no records or report: \
+                     merge the shards, then render)",
+                    st.line,
+                    logs.len(),
+                    if logs.len() == 1 { "" } else { "s" }
+                );
+            }
+            sweeps::shard_text(&sha, s, &logs, stopped)
+        }
+        None => {
+            script_failed(&r, Some("no sweep results written"))?;
+            sweeps::run_results_text(&sha, &logs)
+        }
     };
     statebook::sandbox::write_atomic(&path, text.as_bytes()).map_err(|e| cannot_write(&path, e))?;
     println!("wrote {}", path.display());
     Ok(())
+}
+
+/// Makes the folder of `path` if it is missing and checks that a file can be written
+/// there (a temporary made and removed), so that a long run does not fail at its end.
+fn ready_to_write(path: &Path) -> CliResult {
+    statebook::safe_fs::prepare(&statebook::safe_fs::resolve(path), &[], true)
+        .map(drop)
+        .map_err(|e| cannot_write(path, e))
+}
+
+/// Where a rendered diagnostic (`error: …` then `at FILE:LINE:COL`) says a run stopped.
+fn stopped_at(diagnostic: &str) -> sweeps::Stopped {
+    let message = diagnostic
+        .lines()
+        .next()
+        .unwrap_or("")
+        .trim_start_matches("error: ")
+        .to_string();
+    let line = diagnostic
+        .lines()
+        .find_map(|l| l.trim().strip_prefix("at "))
+        .and_then(|at| at.rsplit(':').nth(1))
+        .and_then(|n| n.parse().ok())
+        .unwrap_or(0);
+    sweeps::Stopped { line, message }
 }
 
 fn cmd_merge(parts: &[PathBuf], output: &Path) -> CliResult {
@@ -394,8 +450,12 @@ fn cmd_merge(parts: &[PathBuf], output: &Path) -> CliResult {
             .map_err(|e| CliError::Failed(format!("cannot read {}: {e}", p.display())))?;
         texts.push((p.display().to_string(), t));
     }
+    ready_to_write(output)?;
     let merged = sweeps::merge(&texts).map_err(CliError::Notebook)?;
-    statebook::sandbox::write_atomic(output, merged.as_bytes())
+    for w in &merged.warnings {
+        eprintln!("warning: {w}");
+    }
+    statebook::sandbox::write_atomic(output, merged.text.as_bytes())
         .map_err(|e| cannot_write(output, e))?;
     println!("wrote {} (from {} shards)", output.display(), parts.len());
     Ok(())
@@ -406,6 +466,9 @@ fn cmd_render(file: &Path, output: Option<&Path>, markdown: bool, common: &Commo
     // concurrent renders cannot mix (a folder where no lock file can be made is read-only,
     // and the writes below fail there anyway).
     let _lock = statebook::safe_fs::lock(&statebook::safe_fs::resolve(file), true).ok();
+    if let Some(o) = output {
+        ready_to_write(o)?;
+    }
     let (r, session) = execute(file, common)?;
     script_failed(
         &r,

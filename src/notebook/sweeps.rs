@@ -41,6 +41,29 @@ pub struct ShardFile {
     pub shard: ShardId,
     /// Every top-level sweep of the run, with the cases of this slice.
     pub sweeps: Vec<SweepLog>,
+    /// Set when the shard run stopped at an error after its sweeps (a later cell failed on
+    /// the partial tables of the slice): a sweep after that point, if the file has one, is
+    /// not in the shard. Absent when the run went to the end.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub stopped: Option<Stopped>,
+}
+
+/// Where and why a shard run stopped before the end of its file.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Stopped {
+    /// The line of the error (0 when unknown).
+    pub line: usize,
+    /// The error's first line.
+    pub message: String,
+}
+
+/// The merged sweep results and what the merge has to tell about them.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Merged {
+    /// The sweep-results file.
+    pub text: String,
+    /// Warnings for the user (shard runs that stopped before the end of the file).
+    pub warnings: Vec<String>,
 }
 
 /// `K/N` as stored in a shard file.
@@ -75,7 +98,12 @@ fn pretty(v: &impl Serialize) -> String {
 }
 
 /// The text of a shard file (compact JSON on one line: it is read by `merge`, not people).
-pub fn shard_text(file_sha256: &str, shard: Shard, sweeps: &[SweepLog]) -> String {
+pub fn shard_text(
+    file_sha256: &str,
+    shard: Shard,
+    sweeps: &[SweepLog],
+    stopped: Option<Stopped>,
+) -> String {
     let mut s = serde_json::to_string(&ShardFile {
         format: SHARD_FORMAT.into(),
         version: VERSION,
@@ -86,6 +114,7 @@ pub fn shard_text(file_sha256: &str, shard: Shard, sweeps: &[SweepLog]) -> Strin
             count: shard.count,
         },
         sweeps: sweeps.to_vec(),
+        stopped,
     })
     .unwrap_or_default();
     s.push('\n');
@@ -138,7 +167,7 @@ pub fn parse_shard(name: &str, text: &str) -> Result<ShardFile, String> {
 }
 
 /// The work of [`merge`], with its error as text.
-fn merge_inner(parts: &[(String, String)]) -> Result<String, String> {
+fn merge_inner(parts: &[(String, String)]) -> Result<Merged, String> {
     let Some(((first_name, _), _)) = parts.split_first() else {
         return Err("no shard files given".into());
     };
@@ -261,16 +290,38 @@ fn merge_inner(parts: &[(String, String)]) -> Result<String, String> {
         }
         merged.push(log);
     }
-    Ok(results_text(
-        &first.file_sha256,
-        &first.statebook_version,
-        &merged,
-    ))
+    // One warning per distinct stop (every shard of a deterministic file stops at the
+    // same line; their messages differ only by the size of their slice).
+    let mut warnings: Vec<String> = Vec::new();
+    let mut lines_seen: Vec<usize> = Vec::new();
+    for ((name, _), s) in parts.iter().zip(&shards) {
+        let Some(st) = &s.stopped else { continue };
+        if lines_seen.contains(&st.line) {
+            continue;
+        }
+        lines_seen.push(st.line);
+        let stopped = shards
+            .iter()
+            .filter(|o| o.stopped.as_ref().is_some_and(|x| x.line == st.line))
+            .count();
+        warnings.push(format!(
+            "{stopped} of the {n} shard runs stopped at line {} after {} sweep{} (first: {name}: \
+             {}); a sweep later in the file than that line is not in these results",
+            st.line,
+            s.sweeps.len(),
+            if s.sweeps.len() == 1 { "" } else { "s" },
+            st.message,
+        ));
+    }
+    Ok(Merged {
+        text: results_text(&first.file_sha256, &first.statebook_version, &merged),
+        warnings,
+    })
 }
 
 /// Merges shard files (name, text) into the sweep-results file of the whole run.
 /// Errors: [`super::NotebookError::Merge`].
-pub fn merge(parts: &[(String, String)]) -> Result<String, super::NotebookError> {
+pub fn merge(parts: &[(String, String)]) -> Result<Merged, super::NotebookError> {
     merge_inner(parts).map_err(super::NotebookError::Merge)
 }
 

@@ -49,7 +49,7 @@ fn shard_texts() -> &'static [(String, String)] {
                 assert!(!r.failed, "{:?}", statebook::notebook::run::first_error(&r));
                 (
                     format!("study.shard-{k}-of-2.json"),
-                    sweeps::shard_text("abc", shard, &s.sweep_logs()),
+                    sweeps::shard_text("abc", shard, &s.sweep_logs(), None),
                 )
             })
             .collect()
@@ -215,6 +215,7 @@ proptest! {
         }
         let input: usize = parts.iter().map(|p| p.1.len()).sum();
         if let Ok(merged) = sweeps::merge(&parts) {
+            let merged = merged.text;
             prop_assert!(serde_json::from_str::<Value>(&merged).is_ok(), "merged text is not JSON");
             prop_assert!(merged.len() < 20 * input + 4096, "merged {} bytes from {input}", merged.len());
         }
@@ -234,7 +235,7 @@ proptest! {
 /// The undamaged files pass, so the damage above is what the readers meet.
 #[test]
 fn undamaged_files_merge_and_check() {
-    let merged = sweeps::merge(shard_texts()).expect("merge");
+    let merged = sweeps::merge(shard_texts()).expect("merge").text;
     assert!(merged.contains("made-up failure"), "{merged}");
     let dir = results_folder().join("clean");
     std::fs::create_dir_all(&dir).expect("dir");

@@ -346,10 +346,14 @@ fn four_merged_shards_equal_one_run() {
         let shard = Shard { index: k, count: 4 };
         let logs = run_logs(SHARDED, Some(shard));
         assert_eq!(logs[0].cases.len(), 250);
-        parts.push((format!("part{k}"), sweeps::shard_text("abc", shard, &logs)));
+        parts.push((
+            format!("part{k}"),
+            sweeps::shard_text("abc", shard, &logs, None),
+        ));
     }
     let merged = sweeps::merge(&parts).expect("merge");
-    assert_eq!(merged, whole);
+    assert_eq!(merged.text, whole);
+    assert!(merged.warnings.is_empty());
     assert!(whole.contains("\"case_count\": 1000") && whole.contains("made-up failure"));
 
     // Missing, duplicate and mismatched shards are refused.
@@ -378,7 +382,7 @@ fn four_merged_shards_equal_one_run() {
     let mut grid = parts.clone();
     grid[3] = (
         "changed".into(),
-        sweeps::shard_text("abc", shard, &run_logs(&changed, Some(shard))),
+        sweeps::shard_text("abc", shard, &run_logs(&changed, Some(shard)), None),
     );
     assert!(sweeps::merge(&grid)
         .unwrap_err()
@@ -460,4 +464,101 @@ fn command_line_shards_merge_to_the_bytes_of_one_run() {
         .output()
         .expect("run");
     assert_eq!(out.status.code(), Some(2));
+}
+
+#[test]
+fn a_shard_run_delivers_its_slice_when_a_later_cell_fails() {
+    let exe = env!("CARGO_BIN_EXE_statebook");
+    let d = temp_dir("late-failure");
+    let file = d.join("study.sbook");
+    // The last cell needs the whole table, which a shard does not have.
+    let text =
+        format!("{SHARDED}//== Needs every case\nrequire(t.len() == 1000, \"the whole grid\");\n");
+    std::fs::write(&file, &text).expect("write");
+    let line = SHARDED.lines().count() + 2;
+    let mut parts = Vec::new();
+    for k in 1..=2 {
+        let out = Command::new(exe)
+            .args(["run", "--shard", &format!("{k}/2")])
+            .arg(&file)
+            .output()
+            .expect("run");
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(0), "{err}");
+        assert!(
+            err.contains("failed on this shard's partial sweep tables"),
+            "{err}"
+        );
+        assert!(err.contains("the 2 sweeps run before it"), "{err}");
+        let p = d.join(format!("study.shard-{k}-of-2.json"));
+        let shard = std::fs::read_to_string(&p).expect("the shard is written");
+        let tail = &shard[shard.len().saturating_sub(120)..];
+        assert!(
+            tail.contains(&format!("\"stopped\":{{\"line\":{line},")),
+            "{tail}"
+        );
+        parts.push(p);
+    }
+    let out = Command::new(exe)
+        .arg("merge")
+        .args(&parts)
+        .arg("-o")
+        .arg(d.join("all.json"))
+        .output()
+        .expect("merge");
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(0), "{err}");
+    assert!(
+        err.contains(&format!(
+            "2 of the 2 shard runs stopped at line {line} after 2 sweeps"
+        )),
+        "{err}"
+    );
+    // A failure before any sweep ran delivers nothing.
+    std::fs::write(&file, format!("require(false, \"early\");\n{SHARDED}")).expect("write");
+    let out = Command::new(exe)
+        .args(["run", "--shard", "1/2"])
+        .arg(&file)
+        .output()
+        .expect("run");
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("no shard written"));
+}
+
+#[test]
+fn sweep_outputs_are_checked_before_the_first_case() {
+    let exe = env!("CARGO_BIN_EXE_statebook");
+    let d = temp_dir("outputs-first");
+    let file = d.join("study.sbook");
+    let text = "//== Study\nprint(\"the study started\");\nlet t = sweep(#{ k: [1, 2] }, |p| #{ y: p.k });\n";
+    std::fs::write(&file, text).expect("write");
+    // A missing folder is made.
+    let nested = d.join("shards/of/today/s1.json");
+    let out = Command::new(exe)
+        .args(["run", "--shard", "1/2", "--sweep-results"])
+        .arg(&nested)
+        .arg(&file)
+        .output()
+        .expect("run");
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(nested.exists());
+    // A folder that cannot be made (its parent is a file) fails before anything runs.
+    std::fs::write(d.join("plain-file"), "x").expect("file");
+    let out = Command::new(exe)
+        .args(["run", "--sweep-results"])
+        .arg(d.join("plain-file/all.json"))
+        .arg(&file)
+        .output()
+        .expect("run");
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("cannot write"));
+    assert!(
+        !String::from_utf8_lossy(&out.stdout).contains("the study started"),
+        "refused before the first cell ran"
+    );
 }
