@@ -126,6 +126,10 @@ struct Common {
     /// Default: half of physical memory, at most 16G.
     #[arg(long, value_name = "SIZE", global = true, value_parser = statebook::budget::parse_size)]
     max_memory: Option<usize>,
+    /// Take every sweep's table from this sweep-results file (what `statebook merge`
+    /// writes) instead of running its cases: the last step of a cluster run.
+    #[arg(long, value_name = "FILE", global = true)]
+    sweeps_from: Option<PathBuf>,
 }
 
 impl Common {
@@ -346,9 +350,50 @@ fn execute_planned(
 ) -> Result<(NotebookRun, Session, String), CliError> {
     let (text, sha) = files::read_analysis(file).map_err(CliError::Notebook)?;
     let name = file.display().to_string();
+    let stored = match &common.sweeps_from {
+        Some(p) => {
+            if plan.shard.is_some() {
+                return Err(CliError::Usage(
+                    "--sweeps-from takes the merged tables of every shard; it cannot be \
+                     combined with --shard"
+                        .into(),
+                ));
+            }
+            let t = statebook::budget::read_bounded(p)
+                .map_err(|e| CliError::Failed(format!("cannot read {}: {e}", p.display())))?;
+            let sweeps = sweeps::parse_results(&p.display().to_string(), &t, &sha)
+                .map_err(CliError::Failed)?;
+            Some((p, sweeps))
+        }
+        None => None,
+    };
     let mut session = Session::new(&common.options(&folder_of(file)));
     session.plan_sweeps(plan);
-    let r = run::run_text(&mut session, &text, &name, files::provenance(&name, &sha));
+    let held = stored
+        .as_ref()
+        .map(|(p, s)| (p.display().to_string(), s.len()));
+    if let Some((_, sweeps)) = stored {
+        session.take_sweeps_from(sweeps);
+    }
+    // A shard run goes on past failing cells, so that every sweep runs its slice.
+    let keep_going = plan.shard.is_some();
+    let r = run::run_text_with(
+        &mut session,
+        &text,
+        &name,
+        files::provenance(&name, &sha),
+        keep_going,
+    );
+    if let Some((p, count)) = held {
+        let ran = session.sweeps_begun();
+        if run::first_error(&r).is_none() && ran != count {
+            return Err(CliError::Failed(format!(
+                "{p} holds {count} sweep{}, but the run made {ran}: the results come from \
+                 another version of the analysis\nhint: run the shards and the merge again",
+                if count == 1 { "" } else { "s" }
+            )));
+        }
+    }
     Ok((r, session, sha))
 }
 
@@ -386,27 +431,23 @@ fn cmd_run(
     };
     let text = match shard {
         Some(s) => {
-            // A shard run delivers its slice even when a later cell fails on the partial
-            // tables (a plot of the whole grid, a check of every case): what follows the
-            // sweeps only makes sense on the merged results.
-            let stopped = match run::first_error(&r) {
-                Some(_) if logs.is_empty() => {
-                    return script_failed(&r, Some("no shard written: no sweep had run"))
-                }
-                Some(e) => Some(stopped_at(e)),
-                None => None,
-            };
-            if let Some(st) = &stopped {
+            // A shard run delivers its slice even when later cells fail on the partial
+            // tables (a plot of the whole grid, a check of every case): the run went on
+            // past them (`keep_going`), and they only make sense on the merged results.
+            let failed: Vec<sweeps::CellFailure> =
+                run::errors(&r).into_iter().map(failure_of).collect();
+            if logs.is_empty() && !failed.is_empty() {
+                return script_failed(&r, Some("no shard written: no sweep ran"));
+            }
+            for f in &failed {
                 eprintln!(
-                    "note: line {} failed on this shard's partial sweep tables; the shard holds \
-                     the {} sweep{} run before it (a shard run writes no records or report: \
-                     merge the shards, then render)",
-                    st.line,
-                    logs.len(),
-                    if logs.len() == 1 { "" } else { "s" }
+                    "note: line {} failed on this shard's partial sweep tables ({}); the run \
+                     went on (a shard run writes no records or report: merge the shards, then \
+                     render with --sweeps-from)",
+                    f.line, f.message
                 );
             }
-            sweeps::shard_text(&sha, s, &logs, stopped)
+            sweeps::shard_text(&sha, s, &logs, failed)
         }
         None => {
             script_failed(&r, Some("no sweep results written"))?;
@@ -426,8 +467,8 @@ fn ready_to_write(path: &Path) -> CliResult {
         .map_err(|e| cannot_write(path, e))
 }
 
-/// Where a rendered diagnostic (`error: …` then `at FILE:LINE:COL`) says a run stopped.
-fn stopped_at(diagnostic: &str) -> sweeps::Stopped {
+/// Where a rendered diagnostic (`error: …` then `at FILE:LINE:COL`) says a cell failed.
+fn failure_of(diagnostic: &str) -> sweeps::CellFailure {
     let message = diagnostic
         .lines()
         .next()
@@ -440,7 +481,7 @@ fn stopped_at(diagnostic: &str) -> sweeps::Stopped {
         .and_then(|at| at.rsplit(':').nth(1))
         .and_then(|n| n.parse().ok())
         .unwrap_or(0);
-    sweeps::Stopped { line, message }
+    sweeps::CellFailure { line, message }
 }
 
 fn cmd_merge(parts: &[PathBuf], output: &Path) -> CliResult {

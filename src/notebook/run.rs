@@ -16,6 +16,20 @@ pub fn run_document(
     source: &str,
     provenance: Provenance,
 ) -> NotebookRun {
+    run_document_with(session, doc, file_name, source, provenance, false)
+}
+
+/// As [`run_document`]; with `keep_going`, a failing cell does not stop the run: its error
+/// stays among its outputs and the next cell runs (a shard run, whose later cells see
+/// partial sweep tables and must not keep its later sweeps from running).
+pub fn run_document_with(
+    session: &mut Session,
+    doc: &Document,
+    file_name: &str,
+    source: &str,
+    provenance: Provenance,
+    keep_going: bool,
+) -> NotebookRun {
     let mut cells = Vec::with_capacity(doc.cells.len());
     let mut failed = false;
     for cell in &doc.cells {
@@ -38,7 +52,7 @@ pub fn run_document(
             first_line: cell.first_line(),
             outputs,
         });
-        if failed {
+        if failed && !keep_going {
             break;
         }
     }
@@ -64,9 +78,33 @@ pub fn run_text(
     provenance: Provenance,
 ) -> NotebookRun {
     // CR-only and CRLF files run like LF ones, and error lines point into the same text.
+    run_text_with(session, text, file_name, provenance, false)
+}
+
+/// As [`run_text`], with `keep_going` as in [`run_document_with`].
+pub fn run_text_with(
+    session: &mut Session,
+    text: &str,
+    file_name: &str,
+    provenance: Provenance,
+    keep_going: bool,
+) -> NotebookRun {
+    // CR-only and CRLF files run like LF ones, and error lines point into the same text.
     let text = crate::safe_fs::normalise_text(text);
     let doc = parse(&text);
-    run_document(session, &doc, file_name, &text, provenance)
+    run_document_with(session, &doc, file_name, &text, provenance, keep_going)
+}
+
+/// Every error of a run, in cell order (one at most unless it ran with `keep_going`).
+pub fn errors(run: &NotebookRun) -> Vec<&str> {
+    run.cells
+        .iter()
+        .flat_map(|c| c.outputs.iter())
+        .filter_map(|o| match o {
+            Output::Error(e) => Some(e.as_str()),
+            _ => None,
+        })
+        .collect()
 }
 
 /// The first error of a run, if it failed.

@@ -41,16 +41,15 @@ pub struct ShardFile {
     pub shard: ShardId,
     /// Every top-level sweep of the run, with the cases of this slice.
     pub sweeps: Vec<SweepLog>,
-    /// Set when the shard run stopped at an error after its sweeps (a later cell failed on
-    /// the partial tables of the slice): a sweep after that point, if the file has one, is
-    /// not in the shard. Absent when the run went to the end.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub stopped: Option<Stopped>,
+    /// The cells that failed in the shard run (a shard run goes on past them: they saw the
+    /// partial tables of the slice). Absent when none failed.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub failed_cells: Vec<CellFailure>,
 }
 
-/// Where and why a shard run stopped before the end of its file.
+/// A cell that failed in a shard run.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
-pub struct Stopped {
+pub struct CellFailure {
     /// The line of the error (0 when unknown).
     pub line: usize,
     /// The error's first line.
@@ -62,7 +61,7 @@ pub struct Stopped {
 pub struct Merged {
     /// The sweep-results file.
     pub text: String,
-    /// Warnings for the user (shard runs that stopped before the end of the file).
+    /// Warnings for the user (cells that failed in the shard runs).
     pub warnings: Vec<String>,
 }
 
@@ -102,7 +101,7 @@ pub fn shard_text(
     file_sha256: &str,
     shard: Shard,
     sweeps: &[SweepLog],
-    stopped: Option<Stopped>,
+    failed_cells: Vec<CellFailure>,
 ) -> String {
     let mut s = serde_json::to_string(&ShardFile {
         format: SHARD_FORMAT.into(),
@@ -114,7 +113,7 @@ pub fn shard_text(
             count: shard.count,
         },
         sweeps: sweeps.to_vec(),
-        stopped,
+        failed_cells,
     })
     .unwrap_or_default();
     s.push('\n');
@@ -129,6 +128,7 @@ pub fn results_text(file_sha256: &str, statebook_version: &str, sweeps: &[SweepL
             json!({
                 "id": s.id,
                 "case_count": s.case_count,
+                "grid_sha256": s.grid_sha256,
                 "failures": s.failures(),
                 "table": s.table_json(),
             })
@@ -146,6 +146,65 @@ pub fn results_text(file_sha256: &str, statebook_version: &str, sweeps: &[SweepL
 /// The results-file text of a complete (unsharded) run.
 pub fn run_results_text(file_sha256: &str, sweeps: &[SweepLog]) -> String {
     results_text(file_sha256, &version(), sweeps)
+}
+
+/// Reads a sweep-results file (from `merge` or `run --sweep-results`) for a run of the
+/// analysis file with SHA-256 `file_sha256`: its sweeps, to be taken in place of running
+/// their cases. Refused (naming the reason) when it is not such a file or comes from
+/// another version of the analysis file.
+pub fn parse_results(
+    name: &str,
+    text: &str,
+    file_sha256: &str,
+) -> Result<Vec<crate::script::sweep::log::StoredSweep>, String> {
+    use crate::script::sweep::log::StoredSweep;
+    let v: Value =
+        serde_json::from_str(text).map_err(|e| format!("{name} is not valid JSON: {e}"))?;
+    if v.get("format").and_then(Value::as_str) != Some(RESULTS_FORMAT) {
+        return Err(format!(
+            "{name} is not a statebook sweep-results file (expected \"format\": \
+             \"{RESULTS_FORMAT}\"; merge the shards into one first)"
+        ));
+    }
+    if v.get("version").and_then(Value::as_u64) != Some(u64::from(VERSION)) {
+        return Err(format!(
+            "{name} has a sweep-results version this statebook does not read"
+        ));
+    }
+    let sha = v.get("file_sha256").and_then(Value::as_str).unwrap_or("");
+    if sha != file_sha256 {
+        return Err(format!(
+            "{name} comes from another version of the analysis file (SHA-256 {} vs {})\nhint: \
+             run the shards and the merge again on this version",
+            short(sha),
+            short(file_sha256)
+        ));
+    }
+    let bad = |what: &str| format!("{name} is not a valid sweep-results file ({what})");
+    let sweeps = v
+        .get("sweeps")
+        .and_then(Value::as_array)
+        .ok_or_else(|| bad("no sweeps"))?;
+    sweeps
+        .iter()
+        .map(|s| {
+            let num = |k: &str| s.get(k).and_then(Value::as_u64).map(|x| x as usize);
+            Ok(StoredSweep {
+                id: num("id").ok_or_else(|| bad("a sweep without id"))?,
+                case_count: num("case_count").ok_or_else(|| bad("a sweep without case_count"))?,
+                grid_sha256: s
+                    .get("grid_sha256")
+                    .and_then(Value::as_str)
+                    .ok_or_else(|| bad("a sweep without grid_sha256: made by an older statebook"))?
+                    .to_string(),
+                table: s
+                    .get("table")
+                    .and_then(Value::as_object)
+                    .cloned()
+                    .ok_or_else(|| bad("a sweep without a table"))?,
+            })
+        })
+        .collect()
 }
 
 /// Reads a shard file's text (`name` is used in messages).
@@ -290,28 +349,27 @@ fn merge_inner(parts: &[(String, String)]) -> Result<Merged, String> {
         }
         merged.push(log);
     }
-    // One warning per distinct stop (every shard of a deterministic file stops at the
-    // same line; their messages differ only by the size of their slice).
+    // One warning per failing line (every shard of a deterministic file fails at the same
+    // lines; their messages differ only by the size of their slice).
     let mut warnings: Vec<String> = Vec::new();
     let mut lines_seen: Vec<usize> = Vec::new();
     for ((name, _), s) in parts.iter().zip(&shards) {
-        let Some(st) = &s.stopped else { continue };
-        if lines_seen.contains(&st.line) {
-            continue;
+        for f in &s.failed_cells {
+            if lines_seen.contains(&f.line) {
+                continue;
+            }
+            lines_seen.push(f.line);
+            let failed = shards
+                .iter()
+                .filter(|o| o.failed_cells.iter().any(|x| x.line == f.line))
+                .count();
+            warnings.push(format!(
+                "line {} failed in {failed} of the {n} shard runs (first: {name}: {}); it saw \
+                 only its shard's slice of the sweeps: render with --sweeps-from to run it on \
+                 the merged tables",
+                f.line, f.message,
+            ));
         }
-        lines_seen.push(st.line);
-        let stopped = shards
-            .iter()
-            .filter(|o| o.stopped.as_ref().is_some_and(|x| x.line == st.line))
-            .count();
-        warnings.push(format!(
-            "{stopped} of the {n} shard runs stopped at line {} after {} sweep{} (first: {name}: \
-             {}); a sweep later in the file than that line is not in these results",
-            st.line,
-            s.sweeps.len(),
-            if s.sweeps.len() == 1 { "" } else { "s" },
-            st.message,
-        ));
     }
     Ok(Merged {
         text: results_text(&first.file_sha256, &first.statebook_version, &merged),

@@ -24,6 +24,33 @@ pub fn float(x: f64) -> Value {
     }
 }
 
+/// A script value from its JSON encoding: the inverse of [`encode`] for numbers (ints
+/// stay ints, floats floats, `"inf"`, `"-inf"` and `"nan"` become those floats), strings,
+/// booleans, `null` (as `()`), arrays and maps. Matrices, complex numbers and models come
+/// back as their encodings (arrays of rows, `{re, im}` maps, maps of matrices).
+pub fn decode(v: &Value) -> Dynamic {
+    match v {
+        Value::Null => Dynamic::UNIT,
+        Value::Bool(b) => Dynamic::from_bool(*b),
+        Value::Number(n) => match n.as_i64() {
+            Some(i) if !n.is_f64() => Dynamic::from_int(i),
+            _ => Dynamic::from_float(n.as_f64().unwrap_or(f64::NAN)),
+        },
+        Value::String(s) => match s.as_str() {
+            "inf" => Dynamic::from_float(f64::INFINITY),
+            "-inf" => Dynamic::from_float(f64::NEG_INFINITY),
+            "nan" => Dynamic::from_float(f64::NAN),
+            _ => Dynamic::from(s.clone()),
+        },
+        Value::Array(a) => Dynamic::from_array(a.iter().map(decode).collect()),
+        Value::Object(o) => Dynamic::from_map(
+            o.iter()
+                .map(|(k, v)| (k.as_str().into(), decode(v)))
+                .collect::<Map>(),
+        ),
+    }
+}
+
 /// A real matrix as an array of rows.
 pub fn matrix(m: &nalgebra::DMatrix<f64>) -> Value {
     Value::Array(

@@ -279,6 +279,17 @@ impl Session {
         self.state.sandbox.root()
     }
 
+    /// Makes every top-level sweep take its table from `sweeps` (a merged sweep-results
+    /// file) instead of running its cases. Call before running the file.
+    pub fn take_sweeps_from(&self, sweeps: Vec<crate::script::sweep::log::StoredSweep>) {
+        self.state.sweep.set_stored(sweeps);
+    }
+
+    /// Number of top-level sweeps the session has begun.
+    pub fn sweeps_begun(&self) -> usize {
+        self.state.sweep.sweeps_begun()
+    }
+
     /// Sets how this session's sweeps run (a shard of each, and whether their cases are
     /// kept for a shard or results file). Call before running the file.
     pub fn plan_sweeps(&self, plan: crate::script::sweep::SweepPlan) {

@@ -49,7 +49,7 @@ fn shard_texts() -> &'static [(String, String)] {
                 assert!(!r.failed, "{:?}", statebook::notebook::run::first_error(&r));
                 (
                     format!("study.shard-{k}-of-2.json"),
-                    sweeps::shard_text("abc", shard, &s.sweep_logs(), None),
+                    sweeps::shard_text("abc", shard, &s.sweep_logs(), Vec::new()),
                 )
             })
             .collect()

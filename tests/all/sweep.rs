@@ -348,7 +348,7 @@ fn four_merged_shards_equal_one_run() {
         assert_eq!(logs[0].cases.len(), 250);
         parts.push((
             format!("part{k}"),
-            sweeps::shard_text("abc", shard, &logs, None),
+            sweeps::shard_text("abc", shard, &logs, Vec::new()),
         ));
     }
     let merged = sweeps::merge(&parts).expect("merge");
@@ -382,7 +382,7 @@ fn four_merged_shards_equal_one_run() {
     let mut grid = parts.clone();
     grid[3] = (
         "changed".into(),
-        sweeps::shard_text("abc", shard, &run_logs(&changed, Some(shard)), None),
+        sweeps::shard_text("abc", shard, &run_logs(&changed, Some(shard)), Vec::new()),
     );
     assert!(sweeps::merge(&grid)
         .unwrap_err()
@@ -489,12 +489,11 @@ fn a_shard_run_delivers_its_slice_when_a_later_cell_fails() {
             err.contains("failed on this shard's partial sweep tables"),
             "{err}"
         );
-        assert!(err.contains("the 2 sweeps run before it"), "{err}");
         let p = d.join(format!("study.shard-{k}-of-2.json"));
         let shard = std::fs::read_to_string(&p).expect("the shard is written");
         let tail = &shard[shard.len().saturating_sub(120)..];
         assert!(
-            tail.contains(&format!("\"stopped\":{{\"line\":{line},")),
+            tail.contains(&format!("\"failed_cells\":[{{\"line\":{line},")),
             "{tail}"
         );
         parts.push(p);
@@ -509,13 +508,11 @@ fn a_shard_run_delivers_its_slice_when_a_later_cell_fails() {
     let err = String::from_utf8_lossy(&out.stderr);
     assert_eq!(out.status.code(), Some(0), "{err}");
     assert!(
-        err.contains(&format!(
-            "2 of the 2 shard runs stopped at line {line} after 2 sweeps"
-        )),
+        err.contains(&format!("line {line} failed in 2 of the 2 shard runs")),
         "{err}"
     );
-    // A failure before any sweep ran delivers nothing.
-    std::fs::write(&file, format!("require(false, \"early\");\n{SHARDED}")).expect("write");
+    // A shard run in which no sweep ran delivers nothing.
+    std::fs::write(&file, "require(false, \"early\");\n").expect("write");
     let out = Command::new(exe)
         .args(["run", "--shard", "1/2"])
         .arg(&file)
@@ -523,6 +520,120 @@ fn a_shard_run_delivers_its_slice_when_a_later_cell_fails() {
         .expect("run");
     assert_eq!(out.status.code(), Some(1));
     assert!(String::from_utf8_lossy(&out.stderr).contains("no shard written"));
+}
+
+/// Runs the binary in `dir`, asserting the exit code; returns stderr.
+fn statebook_in(dir: &std::path::Path, args: &[&str], code: i32) -> String {
+    let out = Command::new(env!("CARGO_BIN_EXE_statebook"))
+        .args(args)
+        .current_dir(dir)
+        .output()
+        .expect("statebook runs");
+    let err = String::from_utf8_lossy(&out.stderr).into_owned();
+    assert_eq!(out.status.code(), Some(code), "{args:?}: {err}");
+    err
+}
+
+#[test]
+fn a_render_from_merged_shards_equals_an_unsharded_render() {
+    let d = temp_dir("sweeps-from");
+    // A grid study whose later cells need the whole table (invented test data).
+    let text = format!(
+        "{SHARDED}//== Worst case\nlet worst = t.column(\"worst_damping\").filter(|x| type_of(x) == \"f64\");\n\
+         require(t.len() == 1000, \"the whole grid\");\nrecord(\"worst\", min(worst));\nrecord(\"cases\", m.len());\n"
+    );
+    std::fs::write(d.join("study.sbook"), &text).expect("write");
+    for k in 1..=3 {
+        statebook_in(&d, &["run", "study.sbook", "--shard", &format!("{k}/3")], 0);
+    }
+    statebook_in(
+        &d,
+        &[
+            "merge",
+            "study.shard-1-of-3.json",
+            "study.shard-2-of-3.json",
+            "study.shard-3-of-3.json",
+            "-o",
+            "all.json",
+        ],
+        0,
+    );
+    statebook_in(&d, &["render", "study.sbook"], 0);
+    let whole_report = std::fs::read(d.join("study.html")).expect("report");
+    let whole_records = std::fs::read(d.join("study.results.json")).expect("records");
+    statebook_in(
+        &d,
+        &["render", "study.sbook", "--sweeps-from", "all.json"],
+        0,
+    );
+    assert!(
+        std::fs::read(d.join("study.html")).expect("report") == whole_report,
+        "report bytes"
+    );
+    assert!(
+        std::fs::read(d.join("study.results.json")).expect("records") == whole_records,
+        "records bytes"
+    );
+    statebook_in(
+        &d,
+        &["check", "study.sbook", "--sweeps-from", "all.json"],
+        0,
+    );
+
+    // Refused, with the reason: another version of the file, another case list, and a
+    // file that is not a merged results file.
+    std::fs::write(d.join("study.sbook"), format!("{text}// edited\n")).expect("write");
+    let err = statebook_in(
+        &d,
+        &["render", "study.sbook", "--sweeps-from", "all.json"],
+        1,
+    );
+    assert!(
+        err.contains("another version of the analysis file"),
+        "{err}"
+    );
+    let all = std::fs::read_to_string(d.join("all.json")).expect("all");
+    let mut other: serde_json::Value = serde_json::from_str(&all).expect("json");
+    other["file_sha256"] = files_sha(&d.join("study.sbook")).into();
+    other["sweeps"][1]["case_count"] = 38.into();
+    std::fs::write(d.join("other.json"), other.to_string()).expect("write");
+    let err = statebook_in(
+        &d,
+        &["render", "study.sbook", "--sweeps-from", "other.json"],
+        1,
+    );
+    assert!(err.contains("different case list"), "{err}");
+    let err = statebook_in(
+        &d,
+        &[
+            "render",
+            "study.sbook",
+            "--sweeps-from",
+            "study.shard-1-of-3.json",
+        ],
+        1,
+    );
+    assert!(err.contains("not a statebook sweep-results file"), "{err}");
+    let err = statebook_in(
+        &d,
+        &[
+            "run",
+            "study.sbook",
+            "--shard",
+            "1/3",
+            "--sweeps-from",
+            "all.json",
+        ],
+        2,
+    );
+    assert!(err.contains("cannot be combined with --shard"), "{err}");
+}
+
+/// The SHA-256 of a file, as the results files write it.
+fn files_sha(p: &std::path::Path) -> String {
+    statebook::notebook::files::read_analysis(p)
+        .expect("read")
+        .1
 }
 
 #[test]

@@ -69,6 +69,7 @@ pub struct SweepContext {
     modules: Mutex<Vec<(String, Shared<Module>)>>,
     deadline: Mutex<Option<Instant>>,
     plan: Mutex<SweepPlan>,
+    stored: Mutex<Option<Arc<Vec<super::log::StoredSweep>>>>,
     next_id: AtomicUsize,
     log: Mutex<Vec<SweepLog>>,
     worker: AtomicBool,
@@ -136,6 +137,22 @@ impl SweepContext {
     /// How the sweeps of this session run.
     pub fn plan(&self) -> SweepPlan {
         *lock(&self.plan)
+    }
+
+    /// Takes every top-level sweep's table from `sweeps` (a merged results file) instead
+    /// of running its cases.
+    pub fn set_stored(&self, sweeps: Vec<super::log::StoredSweep>) {
+        *lock(&self.stored) = Some(Arc::new(sweeps));
+    }
+
+    /// The stored sweeps, if the tables come from a results file.
+    pub fn stored(&self) -> Option<Arc<Vec<super::log::StoredSweep>>> {
+        lock(&self.stored).clone()
+    }
+
+    /// Number of top-level sweeps begun so far.
+    pub fn sweeps_begun(&self) -> usize {
+        self.next_id.load(Ordering::Relaxed)
     }
 
     /// Makes this the state of a worker of `parent`: same library, modules and deadline;

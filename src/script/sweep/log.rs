@@ -43,6 +43,20 @@ pub struct SweepLog {
     pub cases: Vec<CaseLog>,
 }
 
+/// One sweep of a merged sweep-results file, taken in place of running its cases
+/// (`statebook run|render|check FILE --sweeps-from all.json`).
+#[derive(Debug, Clone, PartialEq)]
+pub struct StoredSweep {
+    /// Position among the run's top-level sweeps.
+    pub id: usize,
+    /// Number of cases.
+    pub case_count: usize,
+    /// SHA-256 of the case list ([`grid_sha256`]).
+    pub grid_sha256: String,
+    /// The complete table as an object of columns ([`table_json`]).
+    pub table: Map<String, Value>,
+}
+
 /// SHA-256 (lowercase hex) of a sweep's full case list.
 pub fn grid_sha256(parameters: &[String], cases: &[Vec<Value>]) -> String {
     let text = serde_json::to_string(&serde_json::json!([parameters, cases])).unwrap_or_default();

@@ -65,6 +65,17 @@ pub fn sweep(state: &SessionState, grid: &Dynamic, f: FnPtr, opts: &RunOptions) 
         SweepPlan::default()
     };
     let n = cases.values.len();
+    if let (Some(id), Some(stored)) = (id, state.sweep.stored()) {
+        // The table of a merged results file, with what a run of its cases would say.
+        let table = stored_table(id, &cases, &stored).map_err(fail)?;
+        if opts.stop_on_error {
+            if let Some(r) = table.rows.iter().find(|r| r.error.is_some()) {
+                return Err(stopped_on(&cases, r.case, r.error.as_deref().unwrap_or("")));
+            }
+        }
+        warn_failures(state, &cases, &table);
+        return Ok(table);
+    }
     let selected: Vec<usize> = (0..n)
         .filter(|&i| plan.shard.is_none_or(|s| s.takes(i)))
         .collect();
@@ -80,11 +91,7 @@ pub fn sweep(state: &SessionState, grid: &Dynamic, f: FnPtr, opts: &RunOptions) 
     }
     if opts.stop_on_error {
         if let Some((i, Err(e), _)) = done.iter().find(|(_, r, _)| r.is_err()) {
-            return Err(fail(format!(
-                "sweep: {} failed: {e}\nhint: without stop_on_error the other cases run and \
-                 the failure is listed in the table",
-                case_label(&cases, *i)
-            )));
+            return Err(stopped_on(&cases, *i, e));
         }
     }
     let names: Vec<Vec<String>> = done
@@ -138,17 +145,7 @@ pub fn sweep(state: &SessionState, grid: &Dynamic, f: FnPtr, opts: &RunOptions) 
         rows,
     };
 
-    let failures: Vec<&Row> = table.rows.iter().filter(|r| r.error.is_some()).collect();
-    if let Some(first) = failures.first() {
-        state.warn(format!(
-            "sweep: {} of {} cases failed; the first is {}: {}\nhint: .failures() lists them \
-             all; #{{ stop_on_error: true }} stops at the first",
-            failures.len(),
-            table.rows.len(),
-            case_label(&cases, first.case),
-            first.error.as_deref().unwrap_or("")
-        ));
-    }
+    warn_failures(state, &cases, &table);
     if let (Some(id), Some(shard)) = (id, plan.shard) {
         state.warn(format!(
             "sweep {id}: shard {shard} ran {} of {n} cases; the table holds only those \
@@ -160,6 +157,108 @@ pub fn sweep(state: &SessionState, grid: &Dynamic, f: FnPtr, opts: &RunOptions) 
         state.sweep.push_log(sweep_log(id, &cases, &table));
     }
     Ok(table)
+}
+
+/// The error of a sweep with `stop_on_error` whose case `i` failed with `e`.
+fn stopped_on(cases: &grid::Cases, i: usize, e: &str) -> Box<rhai::EvalAltResult> {
+    fail(format!(
+        "sweep: {} failed: {e}\nhint: without stop_on_error the other cases run and the \
+         failure is listed in the table",
+        case_label(cases, i)
+    ))
+}
+
+/// The warning of a sweep some of whose cases failed.
+fn warn_failures(state: &SessionState, cases: &grid::Cases, table: &Table) {
+    let failures: Vec<&Row> = table.rows.iter().filter(|r| r.error.is_some()).collect();
+    if let Some(first) = failures.first() {
+        state.warn(format!(
+            "sweep: {} of {} cases failed; the first is {}: {}\nhint: .failures() lists them \
+             all; #{{ stop_on_error: true }} stops at the first",
+            failures.len(),
+            table.rows.len(),
+            case_label(cases, first.case),
+            first.error.as_deref().unwrap_or("")
+        ));
+    }
+}
+
+/// Sweep `id`'s table from a merged results file, after checking that the file holds this
+/// sweep with the same case list. The rows come back from their JSON encoding (numbers,
+/// strings, flags, arrays and maps exactly; see [`json::decode`]); case logs are not kept
+/// in results files, so `.logs` is empty.
+fn stored_table(
+    id: usize,
+    cases: &grid::Cases,
+    stored: &[log::StoredSweep],
+) -> Result<Table, String> {
+    let Some(s) = stored.iter().find(|s| s.id == id) else {
+        return Err(format!(
+            "sweep {id}: the sweep-results file holds {} sweep{}, this run has more\nhint: \
+             merge the shards of this version of the file",
+            stored.len(),
+            if stored.len() == 1 { "" } else { "s" }
+        ));
+    };
+    let all: Vec<Vec<serde_json::Value>> = cases
+        .values
+        .iter()
+        .map(|r| r.iter().map(json::encode).collect())
+        .collect();
+    let n = cases.values.len();
+    if s.case_count != n || s.grid_sha256 != log::grid_sha256(&cases.names, &all) {
+        return Err(format!(
+            "sweep {id}: the sweep-results file has a different case list ({} cases there, {n} \
+             here)\nhint: merge the shards of this version of the file",
+            s.case_count
+        ));
+    }
+    let column = |name: &str| -> Result<&Vec<serde_json::Value>, String> {
+        match s.table.get(name) {
+            Some(serde_json::Value::Array(c)) if c.len() == n => Ok(c),
+            _ => Err(format!(
+                "sweep {id}: the sweep-results file has no column '{name}' of {n} values"
+            )),
+        }
+    };
+    for name in &cases.names {
+        column(name)?;
+    }
+    let results: Vec<String> = s
+        .table
+        .keys()
+        .filter(|k| !cases.names.contains(k) && k.as_str() != log::ERROR_COLUMN)
+        .cloned()
+        .collect();
+    let result_columns: Vec<&Vec<serde_json::Value>> = results
+        .iter()
+        .map(|r| column(r))
+        .collect::<Result<_, _>>()?;
+    let errors = match s.table.get(log::ERROR_COLUMN) {
+        Some(_) => Some(column(log::ERROR_COLUMN)?),
+        None => None,
+    };
+    let rows = (0..n)
+        .map(|i| {
+            let error = errors.and_then(|e| e[i].as_str()).map(str::to_string);
+            let mut values = cases.values[i].clone();
+            values.extend(result_columns.iter().map(|c| match error {
+                Some(_) => Dynamic::UNIT,
+                None => json::decode(&c[i]),
+            }));
+            Row {
+                case: i,
+                values,
+                error,
+                log: String::new(),
+            }
+        })
+        .collect();
+    Ok(Table {
+        parameters: cases.names.clone(),
+        results,
+        rows,
+    })
 }
 
 fn sweep_log(id: usize, cases: &grid::Cases, table: &Table) -> log::SweepLog {
