@@ -109,13 +109,7 @@ pub fn errors(run: &NotebookRun) -> Vec<&str> {
 
 /// The first error of a run, if it failed.
 pub fn first_error(run: &NotebookRun) -> Option<&str> {
-    run.cells
-        .iter()
-        .flat_map(|c| c.outputs.iter())
-        .find_map(|o| match o {
-            Output::Error(e) => Some(e.as_str()),
-            _ => None,
-        })
+    errors(run).into_iter().next()
 }
 
 /// Formats a run for the terminal: each cell under a heading line, its outputs below.

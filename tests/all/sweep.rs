@@ -468,58 +468,45 @@ fn command_line_shards_merge_to_the_bytes_of_one_run() {
 
 #[test]
 fn a_shard_run_delivers_its_slice_when_a_later_cell_fails() {
-    let exe = env!("CARGO_BIN_EXE_statebook");
     let d = temp_dir("late-failure");
-    let file = d.join("study.sbook");
     // The last cell needs the whole table, which a shard does not have.
     let text =
         format!("{SHARDED}//== Needs every case\nrequire(t.len() == 1000, \"the whole grid\");\n");
-    std::fs::write(&file, &text).expect("write");
+    std::fs::write(d.join("study.sbook"), &text).expect("write");
     let line = SHARDED.lines().count() + 2;
-    let mut parts = Vec::new();
     for k in 1..=2 {
-        let out = Command::new(exe)
-            .args(["run", "--shard", &format!("{k}/2")])
-            .arg(&file)
-            .output()
-            .expect("run");
-        let err = String::from_utf8_lossy(&out.stderr);
-        assert_eq!(out.status.code(), Some(0), "{err}");
+        let err = statebook_in(&d, &["run", "study.sbook", "--shard", &format!("{k}/2")], 0);
         assert!(
             err.contains("failed on this shard's partial sweep tables"),
             "{err}"
         );
-        let p = d.join(format!("study.shard-{k}-of-2.json"));
-        let shard = std::fs::read_to_string(&p).expect("the shard is written");
+        let shard = std::fs::read_to_string(d.join(format!("study.shard-{k}-of-2.json")))
+            .expect("the shard is written");
         let tail = &shard[shard.len().saturating_sub(120)..];
         assert!(
             tail.contains(&format!("\"failed_cells\":[{{\"line\":{line},")),
             "{tail}"
         );
-        parts.push(p);
     }
-    let out = Command::new(exe)
-        .arg("merge")
-        .args(&parts)
-        .arg("-o")
-        .arg(d.join("all.json"))
-        .output()
-        .expect("merge");
-    let err = String::from_utf8_lossy(&out.stderr);
-    assert_eq!(out.status.code(), Some(0), "{err}");
+    let err = statebook_in(
+        &d,
+        &[
+            "merge",
+            "study.shard-1-of-2.json",
+            "study.shard-2-of-2.json",
+            "-o",
+            "all.json",
+        ],
+        0,
+    );
     assert!(
         err.contains(&format!("line {line} failed in 2 of the 2 shard runs")),
         "{err}"
     );
     // A shard run in which no sweep ran delivers nothing.
-    std::fs::write(&file, "require(false, \"early\");\n").expect("write");
-    let out = Command::new(exe)
-        .args(["run", "--shard", "1/2"])
-        .arg(&file)
-        .output()
-        .expect("run");
-    assert_eq!(out.status.code(), Some(1));
-    assert!(String::from_utf8_lossy(&out.stderr).contains("no shard written"));
+    std::fs::write(d.join("study.sbook"), "require(false, \"early\");\n").expect("write");
+    let err = statebook_in(&d, &["run", "study.sbook", "--shard", "1/2"], 1);
+    assert!(err.contains("no shard written"), "{err}");
 }
 
 /// Runs the binary in `dir`, asserting the exit code; returns stderr.
