@@ -309,10 +309,56 @@ pub fn to_system(
     if let Some(t) = v.read_lock::<super::types::TransferFunction>() {
         return crate::numeric::lti::realize::from_transfer_function(&t.0).map_err(num(fname));
     }
+    if let Some(rows) = v.read_lock::<Array>() {
+        return tf_grid(&rows, fname, arg);
+    }
     Err(fail(format!(
-        "{fname}: {arg} must be a System or a TransferFunction, found {}",
+        "{fname}: {arg} must be a System, a TransferFunction or a grid of them, found {}",
         type_name(v)
     )))
+}
+
+/// A minimal model of a grid of transfer functions `[[g11, g12], [g21, g22]]` (rows are
+/// outputs, columns inputs; a number is a static gain), by
+/// [`crate::numeric::lti::realize::from_transfer_function_grid`].
+fn tf_grid(rows: &Array, fname: &str, arg: &str) -> Rr<crate::numeric::lti::system::StateSpace> {
+    use crate::numeric::lti::tf::TransferFunction as Tf;
+    let dt = rows
+        .iter()
+        .filter_map(|r| r.read_lock::<Array>().map(|r| r.clone()))
+        .flatten()
+        .find_map(|e| {
+            e.read_lock::<super::types::TransferFunction>()
+                .map(|t| t.0.dt)
+        })
+        .unwrap_or(0.0);
+    let mut grid: Vec<Vec<Tf>> = Vec::with_capacity(rows.len());
+    for (i, r) in rows.iter().enumerate() {
+        let Some(r) = r.read_lock::<Array>() else {
+            return Err(fail(format!(
+                "{fname}: {arg} must be a grid of transfer functions (an array of rows), but \
+                 {arg}[{i}] is {}",
+                type_name(r)
+            )));
+        };
+        let mut row = Vec::with_capacity(r.len());
+        for (j, e) in r.iter().enumerate() {
+            if let Some(t) = e.read_lock::<super::types::TransferFunction>() {
+                row.push(t.0.clone());
+            } else if let Some(k) = number_of(e) {
+                row.push(Tf::new(&[k], &[1.0], dt).map_err(num(fname))?);
+            } else {
+                return Err(fail(format!(
+                    "{fname}: {arg}[{i}][{j}] must be a TransferFunction or a number, found {}",
+                    type_name(e)
+                )));
+            }
+        }
+        grid.push(row);
+    }
+    crate::numeric::lti::realize::from_transfer_function_grid(&grid)
+        .map(|r| r.system)
+        .map_err(num(fname))
 }
 
 /// Wraps a model for the script.

@@ -344,6 +344,71 @@ fn well_posed_inverse(mat: &DMatrix<f64>, sign: Sign) -> NumResult<DMatrix<f64>>
 }
 
 /// State names of `[x_g; x_h]` when both models name all their states, else none.
+/// Models with independent inputs and outputs side by side: the block-diagonal model
+/// whose inputs are those of `models[0]`, then of `models[1]`, …, and likewise its outputs
+/// and states (`A = diag(A₁, A₂, …)`, `B = diag(B₁, …)`, `C = diag(C₁, …)`,
+/// `D = diag(D₁, …)`; the transfer matrix is `diag(G₁(s), G₂(s), …)`).
+///
+/// **Names.** When any model names its inputs (outputs, states), the result names them
+/// all: the given names, and `u<k>` (`y<k>`, `x<k>`) at combined position k for a model
+/// that names none. When no model names them, they stay unnamed.
+///
+/// **Cost.** O(N²) to assemble, N the sum of the orders.
+///
+/// **Errors.** No model; models of different time domains or sample times.
+pub fn side_by_side(models: &[StateSpace]) -> NumResult<StateSpace> {
+    let Some(first) = models.first() else {
+        return Err(NumError::invalid(
+            "side_by_side",
+            "expected at least one model, found none",
+        ));
+    };
+    for m in &models[1..] {
+        same_domain("side_by_side", first, m)?;
+    }
+    let (n, mm, p) = models.iter().fold((0, 0, 0), |(n, m, p), s| {
+        (n + s.order(), m + s.inputs(), p + s.outputs())
+    });
+    let (mut a, mut b, mut c, mut d) = (
+        DMatrix::zeros(n, n),
+        DMatrix::zeros(n, mm),
+        DMatrix::zeros(p, n),
+        DMatrix::zeros(p, mm),
+    );
+    let (mut x, mut u, mut y) = (0, 0, 0);
+    for s in models {
+        let (k, mi, pi) = (s.order(), s.inputs(), s.outputs());
+        a.view_mut((x, x), (k, k)).copy_from(&s.a);
+        b.view_mut((x, u), (k, mi)).copy_from(&s.b);
+        c.view_mut((y, x), (pi, k)).copy_from(&s.c);
+        d.view_mut((y, u), (pi, mi)).copy_from(&s.d);
+        (x, u, y) = (x + k, u + mi, y + pi);
+    }
+    let mut out = StateSpace::new(a, b, c, d, first.dt)?;
+    let names = |get: fn(&StateSpace) -> (&Vec<String>, usize), prefix: &str| {
+        if models.iter().all(|s| get(s).0.is_empty()) {
+            return Vec::new();
+        }
+        let mut all = Vec::new();
+        for s in models {
+            let (given, count) = get(s);
+            if given.len() == count {
+                all.extend(given.iter().cloned());
+            } else {
+                let at = all.len();
+                all.extend((at..at + count).map(|k| format!("{prefix}{k}")));
+            }
+        }
+        all
+    };
+    out.names = SignalNames {
+        inputs: names(|s| (&s.names.inputs, s.inputs()), "u"),
+        outputs: names(|s| (&s.names.outputs, s.outputs()), "y"),
+        states: names(|s| (&s.names.states, s.order()), "x"),
+    };
+    Ok(out)
+}
+
 fn joined_states(g: &StateSpace, h: &StateSpace) -> Vec<String> {
     let named = |s: &StateSpace| s.names.states.len() == s.order();
     if named(g) && named(h) && g.order() + h.order() > 0 {
@@ -355,6 +420,36 @@ fn joined_states(g: &StateSpace, h: &StateSpace) -> Vec<String> {
             .collect()
     } else {
         Vec::new()
+    }
+}
+
+#[cfg(test)]
+mod side_by_side_tests {
+    use super::*;
+    use crate::numeric::testing::siso;
+
+    #[test]
+    fn models_side_by_side_are_block_diagonal_with_their_names() {
+        let mut g = siso(&[-1.0], &[1.0], &[2.0], 0.5);
+        g.names.inputs = vec!["torque".into()];
+        g.names.outputs = vec!["speed".into()];
+        let h = siso(&[0.0, 1.0, -4.0, -0.8], &[0.0, 1.0], &[1.0, 0.0], 0.0);
+        let s = side_by_side(&[g.clone(), h.clone()]).expect("stacked");
+        assert_eq!((s.order(), s.inputs(), s.outputs()), (3, 2, 2));
+        assert_eq!(s.a[(0, 0)], -1.0);
+        assert_eq!(s.a[(2, 1)], -4.0);
+        assert_eq!(s.b[(0, 1)], 0.0, "independent inputs");
+        assert_eq!(s.c[(0, 1)], 0.0, "independent outputs");
+        assert_eq!(s.d[(0, 0)], 0.5);
+        assert_eq!(s.names.inputs, ["torque", "u1"]);
+        assert_eq!(s.names.outputs, ["speed", "y1"]);
+        assert!(s.names.states.is_empty());
+        let unnamed = side_by_side(&[h.clone(), h]).expect("stacked");
+        assert!(unnamed.names.inputs.is_empty());
+        assert!(side_by_side(&[]).is_err());
+        let sampled = StateSpace::new(g.a.clone(), g.b.clone(), g.c.clone(), g.d.clone(), 0.1)
+            .expect("valid");
+        assert!(side_by_side(&[g, sampled]).is_err(), "one time domain");
     }
 }
 

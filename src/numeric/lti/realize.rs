@@ -11,6 +11,9 @@ use crate::numeric::linalg::poly::{characteristic_polynomial, polynomial_from_ro
 use crate::numeric::{NumError, NumResult};
 use nalgebra::{Complex, DMatrix};
 
+mod grid;
+pub use grid::{from_transfer_function_grid, GridRealization};
+
 /// Highest order realized from a transfer function (its companion matrix is n×n).
 pub const MAX_REALIZATION_ORDER: usize = 5000;
 

@@ -10,7 +10,7 @@ use crate::numeric::NumError;
 use crate::script::convert::{
     complex_array, fail, matrix_value, system_value, to_complex_vec, type_name, Rr,
 };
-use crate::script::declare::{Call, Model, Param};
+use crate::script::declare::{Call, Model, Models, Param};
 use crate::script::docs::Doc;
 use crate::script::types::{Matrix, System, TransferFunction};
 use nalgebra::DMatrix;
@@ -313,6 +313,24 @@ fn riccati_warning(call: &Call, cond: f64, r: &DMatrix<f64>) {
 }
 
 crate::builtins! {
+    /// models with independent inputs and outputs side by side (block diagonal)
+    ///
+    /// models: an array of models (Systems, TransferFunctions or grids) of one time
+    /// domain. The inputs are those of the first model, then of the second, …; likewise
+    /// the outputs and the states. Signal names are kept; when some models name their
+    /// signals, the unnamed ones are called u<k>, y<k>, x<k> by their position.
+    ///
+    /// example:
+    ///     let drive = transfer_function([3], [1, 2]);
+    ///     let both = side_by_side([plant, drive]);
+    ///     both.input_count   // 2
+    #[family = "design"]
+    fn side_by_side(call, models: Models) -> Dynamic as "System" {
+        interconnect::side_by_side(&models.0)
+            .map(system_value)
+            .map_err(call.num())
+    }
+
     /// the solution X of the continuous Lyapunov equation A X + X Aᵀ + Q = 0
     ///
     /// A n×n, Q n×n symmetric. Unique when no two eigenvalues of A add up to 0; for a

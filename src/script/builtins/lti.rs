@@ -242,10 +242,17 @@ crate::builtins! {
     /// a state-space model x' = Ax + Bu, y = Cx + Du (discrete with sample time dt)
     ///
     /// A n×n, B n×m, C p×n, D p×m (a plain 0 means the zero D). dt in seconds; leave it
-    /// out for a continuous model. From a TransferFunction: a minimal realization.
+    /// out for a continuous model. From a TransferFunction: a minimal realization. From a
+    /// grid [[g11, g12], [g21, g22]] (rows are outputs, columns inputs; a number is a
+    /// static gain; one sample time): each entry realized on its own, assembled, and
+    /// reduced to minimal order by the staircase, kept only when equivalent to the
+    /// assembled model. Every built-in that takes a model takes such a grid.
     ///
     /// example:
     ///     let plant = state_space([[0, 1], [-4, -0.8]], [[0], [1]], [[1, 0]], 0);
+    ///     let g = transfer_function([1], [1, 1]);
+    ///     let two_by_two = state_space([[g, 0.5], [0, g]]);
+    ///     two_by_two.order   // 2
     #[family = "models"]
     fn state_space(call, A: DMatrix<f64>, B: DMatrix<f64>, C: DMatrix<f64>, D: Feedthrough)
         -> Dynamic as "System"
