@@ -12,7 +12,9 @@ mod number;
 mod table;
 
 pub use matrix::{complex_list, complex_matrix, real_list, real_matrix};
-pub use model::{polynomial, system, system_header, transfer_function};
+pub use model::{
+    polynomial, system, system_header, transfer_function, transfer_function_inline, transfer_grid,
+};
 pub use number::{complex, real};
 pub use table::table;
 

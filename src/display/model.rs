@@ -169,6 +169,55 @@ pub fn polynomial(c: &[f64], var: char, style: Style) -> String {
     }
 }
 
+/// A transfer function on one line: `(s + 0.5) / (s^2 + 4 s + 3)` (a constant
+/// denominator of 1 is left out: `0.5`).
+pub fn transfer_function_inline(num: &[f64], den: &[f64], dt: f64, style: Style) -> String {
+    let var = if dt > 0.0 { 'z' } else { 's' };
+    let wrap = |c: &[f64]| {
+        let p = polynomial(c, var, style);
+        if c.iter().filter(|&&x| x != 0.0).count() > 1 {
+            format!("({p})")
+        } else {
+            p
+        }
+    };
+    if den.len() == 1 && den[0] == 1.0 {
+        return polynomial(num, var, style);
+    }
+    format!("{} / {}", wrap(num), wrap(den))
+}
+
+/// A grid of transfer functions (rows are outputs, columns inputs): a size line, then
+/// one aligned row per output of one-line entries.
+pub fn transfer_grid(cells: &[Vec<String>], dt: f64) -> String {
+    let rows = cells.len();
+    let cols = cells.first().map_or(0, Vec::len);
+    let domain = if dt > 0.0 {
+        format!("discrete (dt = {dt} s)")
+    } else {
+        "continuous".to_string()
+    };
+    let mut width = vec![0usize; cols];
+    for r in cells {
+        for (j, c) in r.iter().enumerate() {
+            width[j] = width[j].max(c.chars().count());
+        }
+    }
+    let mut out = format!(
+        "transfer functions {rows}×{cols} · {domain} · row i = output i, column j = input j"
+    );
+    for r in cells {
+        out.push_str("\n  ");
+        let line: Vec<String> = r
+            .iter()
+            .enumerate()
+            .map(|(j, c)| format!("{c:<w$}", w = width[j]))
+            .collect();
+        out.push_str(line.join("   ").trim_end());
+    }
+    out
+}
+
 /// A transfer function: a header line, then the numerator centred over a rule over the
 /// denominator.
 pub fn transfer_function(num: &[f64], den: &[f64], dt: f64, style: Style) -> String {
@@ -195,6 +244,32 @@ pub fn transfer_function(num: &[f64], den: &[f64], dt: f64, style: Style) -> Str
 
 #[cfg(test)]
 mod tests {
+
+    #[test]
+    fn one_line_transfer_functions_bracket_sums_only() {
+        let st = Style::default();
+        assert_eq!(
+            transfer_function_inline(&[2.0], &[1.0, 1.0], 0.0, st),
+            "2 / (s + 1)"
+        );
+        assert_eq!(
+            transfer_function_inline(&[1.0, 0.0], &[1.0, -0.5], 0.1, st),
+            "z / (z - 0.5)"
+        );
+        assert_eq!(transfer_function_inline(&[0.5], &[1.0], 0.0, st), "0.5");
+        let g = transfer_grid(
+            &[
+                vec!["a".into(), "bb".into()],
+                vec!["ccc".into(), "d".into()],
+            ],
+            0.0,
+        );
+        assert_eq!(
+            g,
+            "transfer functions 2×2 · continuous · row i = output i, column j = input j\n  a     bb\n  ccc   d"
+        );
+    }
+
     use super::*;
 
     #[test]

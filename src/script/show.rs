@@ -57,7 +57,34 @@ fn inline(v: &Dynamic, style: Style) -> String {
     format(v, style)
 }
 
+/// An array of rows of transfer functions (what `to_transfer_function` gives for a MIMO
+/// model) as one grid, when it is small enough to read that way.
+fn transfer_grid(a: &Array, style: Style) -> Option<String> {
+    use super::types::TransferFunction;
+    let mut dt = None;
+    let mut cells = Vec::with_capacity(a.len());
+    for row in a {
+        let r = row.read_lock::<Array>()?;
+        let mut line = Vec::with_capacity(r.len());
+        for e in r.iter() {
+            let t = e.read_lock::<TransferFunction>()?;
+            dt.get_or_insert(t.0.dt);
+            line.push(display::transfer_function_inline(
+                &t.0.num, &t.0.den, t.0.dt, style,
+            ));
+        }
+        cells.push(line);
+    }
+    let cols = cells.first().map(Vec::len)?;
+    let fits = cells.len() <= display::ROWS.0 && cols <= display::COLUMNS.0;
+    (cols > 0 && fits && cells.iter().all(|r| r.len() == cols))
+        .then(|| display::transfer_grid(&cells, dt.unwrap_or(0.0)))
+}
+
 fn format_array(a: &Array, style: Style) -> String {
+    if let Some(g) = transfer_grid(a, style) {
+        return g;
+    }
     if a.iter().all(|x| x.is::<Complex>()) && !a.is_empty() {
         let zs: Vec<nalgebra::Complex<f64>> = a
             .iter()
