@@ -1,6 +1,7 @@
 //! Feedback design: Riccati equations, pole assignment, LQ regulator and estimator,
 //! interconnection of models.
 
+pub mod compensator;
 pub mod interconnect;
 pub mod lq;
 pub mod lyapunov;

@@ -3,7 +3,7 @@
 //! operators `* + -`. The numerics are `crate::numeric::design` (Lyapunov equations in
 //! `design::lyapunov`).
 
-use crate::numeric::design::{interconnect, lq, lyapunov, pole_assignment, riccati};
+use crate::numeric::design::{compensator, interconnect, lq, lyapunov, pole_assignment, riccati};
 use crate::numeric::lti::system::StateSpace;
 use crate::numeric::lti::tf::TransferFunction as Tf;
 use crate::numeric::NumError;
@@ -470,6 +470,55 @@ crate::builtins! {
             Dynamic::from_array(complex_array(&e.estimator_poles)),
         );
         Ok(m)
+    }
+
+    /// the observer-based compensator of a plant: input y, output K x̂
+    ///
+    /// K: the state-feedback gain (m×n, e.g. lq_regulator(…).gain), L: the estimator gain
+    /// (n×p, e.g. lq_estimator(…).gain). The estimate follows x̂' = (A − BK − LC + LDK)x̂ +
+    /// Ly and the plant input is u = −Kx̂, so close_loop(plant, compensator) is the
+    /// regulated loop, with the poles of A − BK and of A − LC. A discrete plant gets the
+    /// predictor form (u[k] uses the estimate from y up to step k−1).
+    ///
+    /// example:
+    ///     let K = assign_poles(plant, [-2, -3]);
+    ///     let L = transpose(assign_poles(state_space(transpose(plant.A), transpose(plant.C), transpose(plant.B), 0), [-8, -9]));
+    ///     let closed = close_loop(plant, estimator_controller(plant, K, L));
+    ///     poles(closed)
+    #[family = "design"]
+    fn estimator_controller(call, sys: Model, K: DMatrix<f64>, L: DMatrix<f64>) -> Dynamic as "System" {
+        compensator::estimator_controller(&sys, &K, &L)
+            .map(system_value)
+            .map_err(call.num())
+    }
+
+    /// the plant with integrators of the chosen outputs appended, for servo design
+    ///
+    /// outputs: an output index or an array of them (0-based). Continuous: z' = y_i;
+    /// discrete: the running sum z[k+1] = z[k] + y_i[k]. The new states come after the
+    /// plant's, and the integrals are added as outputs after the plant's. A regulator
+    /// designed on the result (lq_regulator, assign_poles) removes the steady error of those
+    /// outputs.
+    ///
+    /// example:
+    ///     let servo = with_integral_action(plant, 0);
+    ///     let lq = lq_regulator(servo, identity(3), [[1]]);
+    ///     lq.gain
+    #[family = "design"]
+    fn with_integral_action(call, sys: Model, outputs: Dynamic) -> Dynamic as "System" {
+        let list: Vec<usize> = if crate::script::convert::is_list(&outputs) {
+            let v = crate::script::convert::to_f64_vec(&outputs, call.name, "outputs")?;
+            v.iter()
+                .map(|&x| {
+                    crate::script::convert::to_count(&Dynamic::from_float(x), call.name, "outputs")
+                })
+                .collect::<Result<_, _>>()?
+        } else {
+            vec![crate::script::convert::to_count(&outputs, call.name, "outputs")?]
+        };
+        compensator::with_integral_action(&sys, &list)
+            .map(system_value)
+            .map_err(call.num())
     }
 
     /// the model under state feedback u = −K x + r, with r the new input
