@@ -361,6 +361,11 @@ fn tf_grid(rows: &Array, fname: &str, arg: &str) -> Rr<crate::numeric::lti::syst
         .map_err(num(fname))
 }
 
+/// Wraps a transfer function for the script.
+pub fn tf_value(t: crate::numeric::lti::tf::TransferFunction) -> Dynamic {
+    Dynamic::from(super::types::TransferFunction(t))
+}
+
 /// Wraps a model for the script.
 pub fn system_value(s: crate::numeric::lti::system::StateSpace) -> Dynamic {
     Dynamic::from(super::types::System(s))

@@ -2,6 +2,7 @@
 //! transforms, structure and equivalence.
 
 pub mod balance;
+pub mod delay;
 pub mod equivalence;
 pub mod modal;
 pub mod properties;

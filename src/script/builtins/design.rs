@@ -8,7 +8,7 @@ use crate::numeric::lti::system::StateSpace;
 use crate::numeric::lti::tf::TransferFunction as Tf;
 use crate::numeric::NumError;
 use crate::script::convert::{
-    complex_array, fail, matrix_value, system_value, to_complex_vec, type_name, Rr,
+    complex_array, fail, matrix_value, system_value, tf_value, to_complex_vec, type_name, Rr,
 };
 use crate::script::declare::{Call, Model, Models, Param};
 use crate::script::docs::Doc;
@@ -160,10 +160,6 @@ fn combine(op: Op, a: &Dynamic, b: &Dynamic) -> Rr<Dynamic> {
         Op::Subtract => interconnect::parallel(&g, &h, interconnect::Sign::Minus),
     };
     r.map(system_value).map_err(err)
-}
-
-fn tf_value(t: Tf) -> Dynamic {
-    Dynamic::from(TransferFunction(t))
 }
 
 /// The forward model of `close_loop`: a System or a TransferFunction (kept as one, so

@@ -7,14 +7,14 @@ use crate::numeric::lti::{
     balance, equivalence as eqv, modal, properties, realize, staircase, transform, zeros,
 };
 use crate::script::convert::{
-    check_entries, complex_array, float_array, matrix_value, system_value, to_str, Rr,
+    check_entries, complex_array, float_array, matrix_value, system_value, tf_value, to_str, Rr,
 };
 use crate::script::declare::{Call, Finite, Model, Param};
 use crate::script::docs::Doc;
 use crate::script::state;
 use crate::script::types::{Complex, Matrix, System, TransferFunction};
 use nalgebra::DMatrix;
-use rhai::{Array, Dynamic, Engine, Map, INT};
+use rhai::{Array, Dynamic, Engine, Map, FLOAT, INT};
 
 mod files;
 pub use files::BUILTINS as FILE_BUILTINS;
@@ -100,10 +100,6 @@ fn make_system(
     StateSpace::new(a, b, c, d, dt)
         .map(system_value)
         .map_err(call.num())
-}
-
-fn tf_value(t: Tf) -> Dynamic {
-    Dynamic::from(TransferFunction(t))
 }
 
 /// Words a pole that was put on the stability boundary (`modes`, the modal forms): `how`
@@ -271,6 +267,39 @@ crate::builtins! {
     }
     fn state_space(call, tf: Model) -> Dynamic as "System" {
         Ok(system_value(tf))
+    }
+
+    /// a rational approximation of the transport delay e^(−s·seconds) (Padé)
+    ///
+    /// seconds > 0; order 1 to 10 (numerator and denominator degree). All-pass: the gain is
+    /// exact, only the phase is approximate. Its error stays below 0.1° up to
+    /// ω·seconds = 1 (order 2), 2 (order 3), 3 (order 5), and grows fast beyond: check it
+    /// at the loop's crossover with delay_phase_error. The poles are near −order/seconds:
+    /// a short delay gives fast poles, so a simulation needs a small enough step.
+    ///
+    /// example:
+    ///     let d = delay_approximation(0.05, 3);
+    ///     let with_delay = transfer_function([4], [1, 2]) * d;
+    #[family = "models"]
+    fn delay_approximation(call, seconds: FLOAT, order: usize) -> Dynamic as "TransferFunction" {
+        crate::numeric::lti::delay::pade(seconds, order)
+            .map(tf_value)
+            .map_err(call.num())
+    }
+
+    /// the phase error in degrees of delay_approximation(seconds, order) at a frequency
+    ///
+    /// frequency in rad/s. The approximation's phase minus the delay's −frequency·seconds,
+    /// wrapped into (−180°, 180°]; positive means the approximation lags less than the
+    /// delay (optimistic margins).
+    ///
+    /// example:
+    ///     delay_phase_error(0.05, 3, 40)   // at ω·τ = 2: about 0.06°
+    #[family = "models"]
+    fn delay_phase_error(call, seconds: FLOAT, order: usize, frequency: FLOAT) -> FLOAT {
+        // The same checks as the approximation itself.
+        crate::numeric::lti::delay::pade(seconds, order).map_err(call.num())?;
+        Ok(crate::numeric::lti::delay::phase_error_deg(seconds, order, frequency))
     }
 
     /// a rational transfer function, coefficients highest power first
