@@ -130,6 +130,118 @@ pub fn with_integral_action(sys: &StateSpace, outputs: &[usize]) -> NumResult<St
     Ok(out)
 }
 
+/// The closed-loop functions of a plant `P` (p outputs, m inputs) under negative feedback
+/// by a controller `K` (m outputs, p inputs): `u = −K y` (plus disturbances).
+#[derive(Debug, Clone)]
+pub struct LoopFunctions {
+    /// At the plant output (p×p): the loop `L_o = P K`.
+    pub loop_output: StateSpace,
+    /// `S_o = (I + P K)⁻¹`: output disturbance → output, reference → error.
+    pub sensitivity: StateSpace,
+    /// `T_o = P K (I + P K)⁻¹ = I − S_o`: reference → output, sensor noise → output (−).
+    pub complementary: StateSpace,
+    /// `K S_o` (m×p): reference or sensor noise → plant input (the actuator's effort).
+    pub control_sensitivity: StateSpace,
+    /// `S_o P` (p×m): input (load) disturbance → output.
+    pub load_sensitivity: StateSpace,
+    /// At the plant input (m×m): the loop `L_i = K P`.
+    pub loop_input: StateSpace,
+    /// `S_i = (I + K P)⁻¹`.
+    pub sensitivity_input: StateSpace,
+    /// `T_i = K P (I + K P)⁻¹`.
+    pub complementary_input: StateSpace,
+}
+
+/// The loop functions of `plant` under the controller `controller` (see
+/// [`LoopFunctions`]), each a state-space model written down from the signal equations by
+/// [`series`](crate::numeric::design::interconnect::series) and
+/// [`feedback`](crate::numeric::design::interconnect::feedback): their orders add up, no
+/// state is cancelled.
+///
+/// **Errors.** The controller's inputs must match the plant's outputs and its outputs the
+/// plant's inputs; one time domain; an algebraic loop (`I + D_P D_K` singular).
+pub fn loop_functions(plant: &StateSpace, controller: &StateSpace) -> NumResult<LoopFunctions> {
+    use crate::numeric::design::interconnect::{feedback, series, Sign};
+    if controller.inputs() != plant.outputs() || controller.outputs() != plant.inputs() {
+        return Err(NumError::shape(
+            "loop_functions (plant, controller)",
+            format!(
+                "a controller with {} inputs (the plant's outputs) and {} outputs (its inputs)",
+                plant.outputs(),
+                plant.inputs()
+            ),
+            format!(
+                "{} inputs and {} outputs",
+                controller.inputs(),
+                controller.outputs()
+            ),
+        ));
+    }
+    let identity = |k: usize| {
+        StateSpace::new(
+            DMatrix::zeros(0, 0),
+            DMatrix::zeros(0, k),
+            DMatrix::zeros(k, 0),
+            DMatrix::identity(k, k),
+            plant.dt,
+        )
+    };
+    let (ip, im) = (identity(plant.outputs())?, identity(plant.inputs())?);
+    let loop_output = series(plant, controller)?;
+    let loop_input = series(controller, plant)?;
+    let sensitivity = feedback(&ip, &loop_output, Sign::Minus)?;
+    let complementary = feedback(&loop_output, &ip, Sign::Minus)?;
+    let sensitivity_input = feedback(&im, &loop_input, Sign::Minus)?;
+    let complementary_input = feedback(&loop_input, &im, Sign::Minus)?;
+    Ok(LoopFunctions {
+        control_sensitivity: series(controller, &sensitivity)?,
+        load_sensitivity: series(&sensitivity, plant)?,
+        loop_output,
+        sensitivity,
+        complementary,
+        loop_input,
+        sensitivity_input,
+        complementary_input,
+    })
+}
+
+#[cfg(test)]
+mod loop_tests {
+    use super::*;
+    use crate::numeric::freq::response::FrequencyEvaluator;
+    use crate::numeric::testing::siso;
+    use nalgebra::Complex;
+
+    #[test]
+    fn sensitivity_and_complementary_add_to_one_and_match_the_formulas() {
+        // Invented plant 1/(s² + 0.8 s + 4) under a PD-like controller (2 s + 5)/(0.1 s + 1).
+        let p = siso(&[0.0, 1.0, -4.0, -0.8], &[0.0, 1.0], &[1.0, 0.0], 0.0);
+        let k = siso(&[-10.0], &[1.0], &[-150.0], 20.0);
+        let f = loop_functions(&p, &k).expect("loop functions");
+        let at = |s: &StateSpace, w: f64| {
+            FrequencyEvaluator::new(s)
+                .expect("evaluator")
+                .at_frequency(w)[(0, 0)]
+        };
+        for w in [0.1, 2.0, 30.0] {
+            let (pw, kw) = (at(&p, w), at(&k, w));
+            let one = Complex::new(1.0, 0.0);
+            let s = one / (one + pw * kw);
+            let close =
+                |a: Complex<f64>, b: Complex<f64>| (a - b).norm() <= 1e-10 * (1.0 + b.norm());
+            assert!(close(at(&f.sensitivity, w), s), "S at {w}");
+            assert!(close(at(&f.complementary, w), one - s), "T at {w}");
+            assert!(close(at(&f.control_sensitivity, w), kw * s), "KS at {w}");
+            assert!(close(at(&f.load_sensitivity, w), s * pw), "SP at {w}");
+            assert!(
+                close(at(&f.sensitivity_input, w), s),
+                "SISO: S_i = S_o at {w}"
+            );
+        }
+        assert!(loop_functions(&p, &siso(&[-1.0], &[1.0], &[1.0], 0.0)).is_ok());
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

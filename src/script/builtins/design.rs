@@ -488,6 +488,38 @@ crate::builtins! {
             .map_err(call.num())
     }
 
+    /// the closed-loop functions of a plant under negative feedback u = −K y
+    ///
+    /// At the plant output (the usual meaning for one loop): loop = P K, sensitivity
+    /// S = (I + P K)⁻¹ (disturbance at the output → output), complementary T = I − S
+    /// (reference → output), control_sensitivity K S (reference or noise → actuator),
+    /// load_sensitivity S P (load disturbance at the plant input → output). input: the
+    /// same three at the plant input (loop K P, its S and T), which differ from the output
+    /// ones for MIMO loops. Each is a System written down from the signal equations (the
+    /// orders add up; nothing is cancelled).
+    ///
+    /// example:
+    ///     let f = loop_functions(plant, transfer_function([2, 5], [0.1, 1]));
+    ///     hinf_norm(f.sensitivity).value   // the peak of |S|
+    #[family = "design"]
+    fn loop_functions(call, plant: Model, controller: Model)
+        -> Map as "#{ loop, sensitivity, complementary, control_sensitivity, load_sensitivity, input }"
+    {
+        let f = compensator::loop_functions(&plant, &controller).map_err(call.num())?;
+        let mut m = Map::new();
+        m.insert("loop".into(), system_value(f.loop_output));
+        m.insert("sensitivity".into(), system_value(f.sensitivity));
+        m.insert("complementary".into(), system_value(f.complementary));
+        m.insert("control_sensitivity".into(), system_value(f.control_sensitivity));
+        m.insert("load_sensitivity".into(), system_value(f.load_sensitivity));
+        let mut input = Map::new();
+        input.insert("loop".into(), system_value(f.loop_input));
+        input.insert("sensitivity".into(), system_value(f.sensitivity_input));
+        input.insert("complementary".into(), system_value(f.complementary_input));
+        m.insert("input".into(), Dynamic::from_map(input));
+        Ok(m)
+    }
+
     /// the plant with integrators of the chosen outputs appended, for servo design
     ///
     /// outputs: an output index or an array of them (0-based). Continuous: z' = y_i;
