@@ -229,9 +229,10 @@ mod tests {
 
     #[test]
     fn allocations_are_counted() {
-        let before = allocated();
+        // Other tests allocate and free at the same time, so only an absolute bound holds:
+        // while `v` lives, at least its bytes are counted.
         let v = vec![1u8; 50 << 20];
-        assert!(allocated() >= before + (50 << 20));
+        assert!(allocated() >= 50 << 20, "{} bytes counted", allocated());
         drop(std::hint::black_box(v));
     }
 
