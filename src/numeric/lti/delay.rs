@@ -30,12 +30,25 @@ pub fn pade(tau: f64, n: usize) -> NumResult<TransferFunction> {
         ));
     }
     let c = coefficients(n);
-    // Highest power first: the coefficient of s^k is cₖ τᵏ (numerator with (−1)ᵏ).
+    // Monic from the start, highest power first: the coefficient of sᵏ is
+    // (cₖ/cₙ)·τ^(k−n) (the numerator's times (−1)ᵏ: `P(−sτ)`). Forming cₖτᵏ first would
+    // underflow for a short delay (τ¹⁰ = 0 for τ = 1e−35) and silently drop the leading
+    // power; this way a delay too short to represent overflows and is refused.
+    let scale = |k: usize| c[k] / c[n] / tau.powi((n - k) as i32);
     let num: Vec<f64> = (0..=n)
         .rev()
-        .map(|k| c[k] * tau.powi(k as i32) * if k % 2 == 1 { -1.0 } else { 1.0 })
+        .map(|k| scale(k) * if k % 2 == 1 { -1.0 } else { 1.0 })
         .collect();
-    let den: Vec<f64> = (0..=n).rev().map(|k| c[k] * tau.powi(k as i32)).collect();
+    let den: Vec<f64> = (0..=n).rev().map(scale).collect();
+    if num.iter().chain(&den).any(|x| !x.is_finite()) {
+        return Err(NumError::invalid(
+            "seconds",
+            format!(
+                "a delay of {tau} s is too short for an approximation of order {n}: its \
+                 coefficients overflow (use a lower order)"
+            ),
+        ));
+    }
     TransferFunction::new(&num, &den, 0.0)
 }
 
@@ -107,15 +120,50 @@ mod tests {
             }
         }
         let g = pade(0.01, 3).expect("approximant");
-        let at = |s: nalgebra::Complex<f64>, c: &[f64]| {
-            c.iter()
-                .fold(nalgebra::Complex::new(0.0, 0.0), |a, &x| a * s + x)
-        };
+        let at = |s, c: &[f64]| crate::numeric::linalg::poly::polynomial_eval(c, s);
         for w in [1.0, 100.0, 1e4] {
             let s = nalgebra::Complex::new(0.0, w);
             let mag = (at(s, &g.num) / at(s, &g.den)).norm();
             assert_close!(mag, 1.0, 0.0, 1e-12, "all-pass at {w} rad/s");
         }
+    }
+
+    #[test]
+    fn short_and_long_delays_keep_their_order_or_are_refused() {
+        // Rescaled time: the approximant in other units has the same degree and the same
+        // all-pass magnitude; a delay too short for the doubles is refused.
+        use crate::numeric::linalg::poly::polynomial_eval;
+        for tau in [1e-9, 1e-3, 1.0, 1e4] {
+            let g = pade(tau, 6).expect("approximant");
+            assert_eq!((g.num.len(), g.den.len()), (7, 7), "τ = {tau}");
+            let s = nalgebra::Complex::new(0.0, 2.0 / tau);
+            let v = polynomial_eval(&g.num, s) / polynomial_eval(&g.den, s);
+            assert_close!(v.norm(), 1.0, 0.0, 1e-12, "τ = {tau}");
+            // The phase, not only the gain: unit gain at s = 0 and the delay's lag
+            // (within the approximant's error) at ωτ = 2.
+            let zero = nalgebra::Complex::new(0.0, 0.0);
+            let dc = polynomial_eval(&g.num, zero) / polynomial_eval(&g.den, zero);
+            assert_close!(dc.re, 1.0, 0.0, 1e-12, "unit gain at s = 0, τ = {tau}");
+            assert!(
+                (v.arg() + 2.0).abs() < 1e-4,
+                "τ = {tau}: phase {} rad",
+                v.arg()
+            );
+        }
+        // Odd orders too: the numerator's leading sign is (−1)ⁿ.
+        let g3 = pade(0.5, 3).expect("approximant");
+        assert_eq!(g3.num[0].signum(), -1.0);
+        let s = nalgebra::Complex::new(0.0, 2.0);
+        let v = polynomial_eval(&g3.num, s) / polynomial_eval(&g3.den, s);
+        assert!(
+            (v.arg() + 1.0).abs() < 1e-3,
+            "ωτ = 1: phase {} rad",
+            v.arg()
+        );
+        assert!(
+            pade(1e-35, 10).is_err(),
+            "refused, not cut to a lower degree"
+        );
     }
 
     #[test]
