@@ -147,7 +147,7 @@ pub fn is_list(v: &Dynamic) -> bool {
 }
 
 /// The value of an int or a float.
-fn number_of(x: &Dynamic) -> Option<f64> {
+pub fn number_of(x: &Dynamic) -> Option<f64> {
     x.as_float()
         .ok()
         .or_else(|| x.as_int().ok().map(|i| i as f64))

@@ -5,7 +5,6 @@
 //! mark, CR-only line ends, non-UTF-8 REPL input, marker lines in the session log, raw
 //! HTML in Markdown reports). No case may end by a signal.
 
-use std::io::Write;
 use std::os::unix::fs::symlink;
 use std::path::{Path, PathBuf};
 use std::process::{Child, Output, Stdio};
@@ -160,7 +159,7 @@ fn repl_does_not_write_plots_or_logs_through_shipped_links() {
     std::fs::create_dir_all(&logs_out).expect("logs");
     symlink(&plots_out, project.join("plots")).expect("link");
     symlink(&logs_out, project.join(".statebook")).expect("link");
-    let out = repl_piped(&project, &format!("{MODEL}\nplot_step(g)\n"));
+    let out = repl_piped(&project, format!("{MODEL}\nplot_step(g)\n"));
     no_signal(&out);
     let err = text(&out.stderr);
     assert!(err.contains("no session log is kept"), "{err}");
@@ -603,20 +602,10 @@ fn an_error_two_imports_deep_names_the_innermost_file_and_every_step() {
 #[test]
 fn piped_repl_reports_a_non_utf8_line_and_goes_on() {
     let (project, _) = tree("non-utf8");
-    let mut child = bin()
-        .current_dir(&project)
-        .stdin(Stdio::piped())
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .spawn()
-        .expect("spawn");
-    child
-        .stdin
-        .take()
-        .expect("stdin")
-        .write_all(b"print(\"first\");\nprint(\"\xff\xfe\");\nprint(\"third\");\n")
-        .expect("write");
-    let out = child.wait_with_output().expect("wait");
+    let out = repl_piped(
+        &project,
+        b"print(\"first\");\nprint(\"\xff\xfe\");\nprint(\"third\");\n",
+    );
     no_signal(&out);
     assert_eq!(out.status.code(), Some(1));
     let (o, e) = (text(&out.stdout), text(&out.stderr));

@@ -511,12 +511,12 @@ fn a_shard_run_delivers_its_slice_when_a_later_cell_fails() {
 
 /// Runs the binary in `dir`, asserting the exit code; returns stderr.
 fn statebook_in(dir: &std::path::Path, args: &[&str], code: i32) -> String {
-    let out = Command::new(env!("CARGO_BIN_EXE_statebook"))
+    let out = crate::common::cli::bin()
         .args(args)
         .current_dir(dir)
         .output()
         .expect("statebook runs");
-    let err = String::from_utf8_lossy(&out.stderr).into_owned();
+    let err = crate::common::cli::text(&out.stderr);
     assert_eq!(out.status.code(), Some(code), "{args:?}: {err}");
     err
 }

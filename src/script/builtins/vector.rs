@@ -6,7 +6,7 @@
 //! `v / w` between vectors of equal length, and `+ - * /` with a number on either side.
 //! (A `Matrix` keeps the matrix product; `column(v)` makes a vector a column.)
 
-use crate::script::convert::{fail, type_name, Rr};
+use crate::script::convert::{fail, number_of, to_f64, Rr};
 use crate::script::docs::Doc;
 use crate::script::types::Vector;
 use rhai::{Array, Dynamic, Engine, FnPtr, NativeCallContext, FLOAT, INT};
@@ -53,19 +53,6 @@ fn position(i: INT, len: usize) -> Rr<usize> {
     Ok(k as usize)
 }
 
-fn number(v: &Dynamic, what: &str) -> Rr<f64> {
-    if let Ok(x) = v.as_float() {
-        return Ok(x);
-    }
-    if let Ok(i) = v.as_int() {
-        return Ok(i as f64);
-    }
-    Err(fail(format!(
-        "{what} must be a number, found {}",
-        type_name(v)
-    )))
-}
-
 fn zip(op: &str, a: &Vector, b: &Vector, f: impl Fn(f64, f64) -> f64) -> Rr<Vector> {
     if a.0.len() != b.0.len() {
         return Err(fail(format!(
@@ -95,7 +82,7 @@ pub fn register(e: &mut Engine, array_size: usize) {
     });
     e.register_indexer_set(|v: &mut Vector, i: INT, x: Dynamic| -> Rr<()> {
         let k = position(i, v.0.len())?;
-        v.make_mut()[k] = number(&x, "the new value")?;
+        v.make_mut()[k] = to_f64(&x, "Vector", "the new value")?;
         Ok(())
     });
     e.register_fn("len", |v: &mut Vector| v.0.len() as INT);
@@ -103,7 +90,7 @@ pub fn register(e: &mut Engine, array_size: usize) {
         v.0.iter().map(|&x| Dynamic::from_float(x)).collect()
     });
     e.register_fn("push", move |v: &mut Vector, x: Dynamic| -> Rr<()> {
-        let x = number(&x, "push: the value")?;
+        let x = to_f64(&x, "push", "the value")?;
         if array_size > 0 && v.0.len() >= array_size {
             return Err(fail(format!(
                 "push: the Vector would exceed --max-array-size ({array_size} values)"
@@ -119,8 +106,7 @@ pub fn register(e: &mut Engine, array_size: usize) {
             for &x in v.0.iter() {
                 out.push(f.call_within_context::<Dynamic>(&ctx, (x,))?);
             }
-            if out.iter().all(|y| y.is_float() || y.is_int()) {
-                let numbers: Vec<f64> = out.iter().map(|y| number(y, "")).collect::<Rr<_>>()?;
+            if let Some(numbers) = out.iter().map(number_of).collect::<Option<Vec<f64>>>() {
                 return Ok(Dynamic::from(Vector::from(numbers)));
             }
             Ok(Dynamic::from_array(out))

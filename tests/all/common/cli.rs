@@ -24,7 +24,7 @@ pub fn text(b: &[u8]) -> String {
 }
 
 /// The REPL (`statebook` with no arguments) run in `dir` with `input` piped to it.
-pub fn repl_piped(dir: &Path, input: &str) -> Output {
+pub fn repl_piped(dir: &Path, input: impl AsRef<[u8]>) -> Output {
     let mut child = bin()
         .current_dir(dir)
         .stdin(Stdio::piped())
@@ -36,7 +36,7 @@ pub fn repl_piped(dir: &Path, input: &str) -> Output {
         .stdin
         .take()
         .expect("stdin")
-        .write_all(input.as_bytes())
+        .write_all(input.as_ref())
         .expect("write");
     child.wait_with_output().expect("wait")
 }

@@ -108,6 +108,8 @@ pub fn from_transfer_function_grid(g: &[Vec<TransferFunction>]) -> NumResult<Gri
 mod tests {
     use super::*;
     use crate::assert_close;
+    use crate::numeric::freq::response::FrequencyEvaluator;
+    use crate::numeric::linalg::poly::polynomial_eval;
     use crate::numeric::lti::realize::to_transfer_function;
     use nalgebra::Complex;
 
@@ -117,19 +119,11 @@ mod tests {
 
     /// G(s) at one point, from the model.
     fn response(sys: &StateSpace, s: Complex<f64>) -> DMatrix<Complex<f64>> {
-        let n = sys.order();
-        let a = sys.a.map(|x| Complex::new(x, 0.0));
-        let m = DMatrix::<Complex<f64>>::identity(n, n) * s - a;
-        let x = m
-            .lu()
-            .solve(&sys.b.map(|x| Complex::new(x, 0.0)))
-            .expect("regular");
-        sys.c.map(|x| Complex::new(x, 0.0)) * x + sys.d.map(|x| Complex::new(x, 0.0))
+        FrequencyEvaluator::new(sys).expect("evaluator").at_point(s)
     }
 
     fn value(t: &TransferFunction, s: Complex<f64>) -> Complex<f64> {
-        let ev = |c: &[f64]| c.iter().fold(Complex::new(0.0, 0.0), |acc, &x| acc * s + x);
-        ev(&t.num) / ev(&t.den)
+        polynomial_eval(&t.num, s) / polynomial_eval(&t.den, s)
     }
 
     #[test]
