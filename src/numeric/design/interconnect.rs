@@ -343,7 +343,6 @@ fn well_posed_inverse(mat: &DMatrix<f64>, sign: Sign) -> NumResult<DMatrix<f64>>
     })
 }
 
-/// State names of `[x_g; x_h]` when both models name all their states, else none.
 /// Models with independent inputs and outputs side by side: the block-diagonal model
 /// whose inputs are those of `models[0]`, then of `models[1]`, …, and likewise its outputs
 /// and states (`A = diag(A₁, A₂, …)`, `B = diag(B₁, …)`, `C = diag(C₁, …)`,
@@ -409,6 +408,7 @@ pub fn side_by_side(models: &[StateSpace]) -> NumResult<StateSpace> {
     Ok(out)
 }
 
+/// State names of `[x_g; x_h]` when both models name all their states, else none.
 fn joined_states(g: &StateSpace, h: &StateSpace) -> Vec<String> {
     let named = |s: &StateSpace| s.names.states.len() == s.order();
     if named(g) && named(h) && g.order() + h.order() > 0 {

@@ -8,3 +8,4 @@ pub mod lyapunov;
 pub mod pole_assignment;
 pub mod riccati;
 pub mod root_locus;
+pub mod wire;

@@ -16,6 +16,19 @@ pub struct SignalNames {
     pub states: Vec<String>,
 }
 
+impl SignalNames {
+    /// The given names when there is one per signal, else the positional names
+    /// `<prefix>0, <prefix>1, …` (`u` inputs, `y` outputs, `x` states), by which scripts
+    /// may always refer to unnamed signals.
+    pub fn or_positional(given: &[String], count: usize, prefix: &str) -> Vec<String> {
+        if given.len() == count {
+            given.to_vec()
+        } else {
+            (0..count).map(|k| format!("{prefix}{k}")).collect()
+        }
+    }
+}
+
 /// A linear time-invariant state-space model.
 #[derive(Debug, Clone, PartialEq)]
 pub struct StateSpace {

@@ -1,7 +1,7 @@
 //! Model built-ins: construction, conversion, properties, transforms, structure,
 //! equivalence, and model files (`files.rs`).
 
-use crate::numeric::lti::system::StateSpace;
+use crate::numeric::lti::system::{SignalNames, StateSpace};
 use crate::numeric::lti::tf::TransferFunction as Tf;
 use crate::numeric::lti::{
     balance, equivalence as eqv, modal, properties, realize, staircase, transform, zeros,
@@ -27,7 +27,9 @@ pub const DOCS: &[Doc] = &[Doc {
     usage: "sys.A, sys.B, sys.C, sys.D → Matrix",
     summary: "the model's matrices",
     details: "Also sys.dt (0 when continuous), sys.order, sys.input_count, sys.output_count; \
-              for a TransferFunction tf.num, tf.den, tf.dt.",
+              sys.input_names, sys.output_names, sys.state_names (the names from \
+              name_signals, or u0, u1, … / y0, … / x0, … where none are given); for a \
+              TransferFunction tf.num, tf.den, tf.dt.",
     example: "plant.A",
 }];
 
@@ -43,6 +45,15 @@ pub fn register(engine: &mut Engine) {
     engine.register_get("order", |s: &mut System| s.0.order() as INT);
     engine.register_get("input_count", |s: &mut System| s.0.inputs() as INT);
     engine.register_get("output_count", |s: &mut System| s.0.outputs() as INT);
+    engine.register_get("input_names", |s: &mut System| {
+        named_or_positional(&s.0.names.inputs, s.0.inputs(), "u")
+    });
+    engine.register_get("output_names", |s: &mut System| {
+        named_or_positional(&s.0.names.outputs, s.0.outputs(), "y")
+    });
+    engine.register_get("state_names", |s: &mut System| {
+        named_or_positional(&s.0.names.states, s.0.order(), "x")
+    });
     engine.register_get("num", |t: &mut TransferFunction| {
         Dynamic::from_array(float_array(&t.0.num))
     });
@@ -165,6 +176,14 @@ fn transformed(call: &Call, tr: transform::Transformed) -> Map {
     m.insert("system".into(), system_value(tr.system));
     m.insert("transform".into(), matrix_value(tr.t));
     m
+}
+
+/// The names `wire` accepts, as strings (see [`SignalNames::or_positional`]).
+fn named_or_positional(given: &[String], count: usize, prefix: &str) -> Array {
+    SignalNames::or_positional(given, count, prefix)
+        .into_iter()
+        .map(Dynamic::from)
+        .collect()
 }
 
 fn names_of(call: &Call, v: &Dynamic, what: &str, count: usize) -> Rr<Vec<String>> {

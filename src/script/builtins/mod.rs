@@ -19,6 +19,7 @@ pub mod stats;
 pub mod sweep;
 pub mod time;
 pub mod vector;
+pub mod wire;
 
 use super::docs::Doc;
 use crate::script::output::Output;
@@ -32,6 +33,7 @@ pub const DECLARED: &[&[crate::script::declare::Builtin]] = &[
     matrix::BUILTINS,
     linalg::BUILTINS,
     design::BUILTINS,
+    wire::BUILTINS,
     lti::BUILTINS,
     lti::FILE_BUILTINS,
     files::BUILTINS,
